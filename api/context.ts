@@ -1,0 +1,37 @@
+/**
+ * What every service receives: configuration, the database and the ports to hosted
+ * services. Built once per process by api/index.ts (or per test by the harness).
+ */
+import type { Database, Db } from '../db/client';
+import type { Config } from './config';
+import type { Logger } from './log';
+
+export interface AppContext {
+  config: Config;
+  database: Database;
+  db: Db;
+  log: Logger;
+  /** Where the GitHub OAuth endpoints are: github.com, or the local fake provider. */
+  github: GithubEndpoints;
+}
+
+export interface GithubEndpoints {
+  clientId: string;
+  clientSecret: string;
+  authorizationURL: string;
+  tokenURL: string;
+  userProfileURL: string;
+  userEmailURL: string;
+  /** True when the local fake stands in for GitHub. */
+  fake: boolean;
+}
+
+export const realGithub = (clientId: string, clientSecret: string): GithubEndpoints => ({
+  clientId,
+  clientSecret,
+  authorizationURL: 'https://github.com/login/oauth/authorize',
+  tokenURL: 'https://github.com/login/oauth/access_token',
+  userProfileURL: 'https://api.github.com/user',
+  userEmailURL: 'https://api.github.com/user/emails',
+  fake: false,
+});
