@@ -9,7 +9,7 @@ const root = fileURLToPath(new URL('.', import.meta.url));
 export default defineConfig({
   root: 'app',
   publicDir: 'public',
-  plugins: [vue(), vuetify({ autoImport: true, styles: { configFile: 'styles/settings.scss' } })],
+  plugins: [vue(), vuetify({ autoImport: true })],
   resolve: {
     alias: {
       '@': fileURLToPath(new URL('./app', import.meta.url)),

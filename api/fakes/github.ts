@@ -65,7 +65,9 @@ export function createFakeGithub(options: FakeGithubOptions) {
   app.use(express.urlencoded({ extended: false, limit: '16kb' }));
   app.use(express.json({ limit: '16kb' }));
   app.use((_req, res, next) => {
-    res.set('Content-Security-Policy', "default-src 'none'; style-src 'unsafe-inline'; form-action 'self'; base-uri 'none'");
+    // form-action covers the redirect back to the app after a form is sent, so it lists those origins.
+    const formTargets = ["'self'", ...options.allowedRedirectOrigins].join(' ');
+    res.set('Content-Security-Policy', `default-src 'none'; style-src 'unsafe-inline'; form-action ${formTargets}; base-uri 'none'`);
     res.set('X-Frame-Options', 'DENY');
     next();
   });

@@ -1,0 +1,80 @@
+/**
+ * Browser tests (playwright gives every launch a fresh, empty profile): the whole product (real server, real database, built client, fake
+ * provider) driven by Debian's Chromium through playwright-core. A console error or an
+ * uncaught page error fails the test.
+ */
+import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
+import { expect } from 'vitest';
+import { loadConfig } from '../../api/config';
+import { repoRoot } from '../../api/config';
+import { defaultClientDir, startServer, type RunningServer } from '../../api/server';
+import { createTestDatabase, type TestDatabase } from './db';
+import { freePort } from './postgres';
+
+export const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
+
+export interface Product {
+  origin: string;
+  server: RunningServer;
+  database: TestDatabase;
+  browser: Browser;
+  /** A fresh browser profile (cookies, storage) with console-error tracking. */
+  newPage(): Promise<{ page: Page; context: BrowserContext; problems: string[] }>;
+  close(): Promise<void>;
+}
+
+export async function startProduct(env: Record<string, string> = {}): Promise<Product> {
+  const database = await createTestDatabase();
+  const port = await freePort();
+  const origin = `http://localhost:${port}`;
+  const config = loadConfig({
+    NODE_ENV: 'test',
+    PORT: String(port),
+    APP_ORIGIN: origin,
+    FAKE_GITHUB_PORT: '0',
+    LOG_LEVEL: 'warn',
+    ...env,
+  });
+  const server = await startServer(config, { clientDir: defaultClientDir(repoRoot), databaseUrl: database.url });
+  const browser = await chromium.launch({
+    executablePath: CHROMIUM,
+    headless: true,
+    args: [
+      '--no-sandbox',
+      '--disable-gpu',
+      '--disable-quic',
+      '--no-first-run',
+      '--disable-background-networking',
+      '--disable-component-update',
+      '--disable-sync',
+    ],
+  });
+  const contexts: BrowserContext[] = [];
+  return {
+    origin,
+    server,
+    database,
+    browser,
+    async newPage() {
+      const context = await browser.newContext({ baseURL: origin, viewport: { width: 1280, height: 900 } });
+      contexts.push(context);
+      const page = await context.newPage();
+      const problems: string[] = [];
+      page.on('console', (message) => {
+        if (message.type() === 'error') problems.push(`console.error: ${message.text()}`);
+      });
+      page.on('pageerror', (error) => problems.push(`page error: ${error.message}`));
+      return { page, context, problems };
+    },
+    async close() {
+      for (const c of contexts) await c.close().catch(() => {});
+      await browser.close();
+      await server.stop();
+      await database.drop();
+    },
+  };
+}
+
+export function expectNoProblems(problems: string[]) {
+  expect(problems, 'the page logged errors').toEqual([]);
+}
