@@ -3,7 +3,7 @@
  * and tests the endpoints point at the local fake provider in api/fakes/github.ts.
  */
 import passportModule from 'passport';
-import { Strategy as GitHubStrategy, type Profile } from 'passport-github2';
+import { Strategy as GitHubStrategy, type Profile, type StrategyOptions } from 'passport-github2';
 import type { AppContext } from '../context';
 import { loadSessionUser, signInFromProvider } from '../users/service';
 import type { AuthUser } from '../http/routes';
@@ -30,14 +30,8 @@ export function createPassport(ctx: AppContext): passportModule.PassportStatic {
         // The types say string; passport-oauth2 wants `true` to keep state in the session.
         state: true as unknown as string,
         pkce: true,
-        passReqToCallback: false,
-      } as ConstructorParameters<typeof GitHubStrategy>[0],
-      (
-        _accessToken: string,
-        _refreshToken: string,
-        profile: Profile,
-        done: (error: unknown, user?: AuthUser | false) => void,
-      ) => {
+      } as StrategyOptions,
+      (_accessToken: string, _refreshToken: string, profile: Profile, done: (error: unknown, user?: AuthUser) => void) => {
         signInFromProvider(ctx, {
           provider: PROVIDER,
           providerUserId: String(profile.id),

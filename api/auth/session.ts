@@ -45,7 +45,8 @@ export function absoluteLifetime(ctx: AppContext): RequestHandler {
   return (req, _res, next) => {
     const started = req.session?.signedInAt;
     if (started !== undefined && Date.now() - started > limitMs) {
-      req.session.destroy((error) => next(error));
+      // Regenerate: the old session is deleted from the store and the request goes on anonymous.
+      req.session.regenerate((error) => next(error));
       return;
     }
     next();

@@ -9,6 +9,7 @@
  */
 import { createHash, randomBytes } from 'node:crypto';
 import fs from 'node:fs';
+import type { Server } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import path from 'node:path';
 import express, { type Request, type Response } from 'express';
@@ -229,7 +230,7 @@ export interface RunningFakeGithub {
 export async function startFakeGithub(options: FakeGithubOptions & { port: number; host?: string }): Promise<RunningFakeGithub> {
   const { app, accounts } = createFakeGithub(options);
   const host = options.host ?? '127.0.0.1';
-  const server = await new Promise<import('node:http').Server>((resolve, reject) => {
+  const server = await new Promise<Server>((resolve, reject) => {
     const s = app.listen(options.port, host, () => resolve(s));
     s.once('error', reject);
   });

@@ -44,7 +44,7 @@ export function findPgError(error: unknown): { code?: string; constraint?: strin
   let current: unknown = error;
   for (let depth = 0; depth < 5 && current; depth++) {
     if (typeof current === 'object' && current !== null && 'code' in current && 'severity' in current) {
-      return current as { code?: string; constraint?: string; message: string };
+      return current as unknown as { code?: string; constraint?: string; message: string };
     }
     current = (current as { cause?: unknown }).cause;
   }

@@ -207,7 +207,8 @@ export class ApiRoutes {
         body: Infer<B>;
       });
       if (res.headersSent) return;
-      const status = spec.status ?? 200;
+      // A handler may pick another status itself (e.g. health's 503); otherwise the declared one.
+      const status = res.statusCode !== 200 ? res.statusCode : (spec.status ?? 200);
       if (status === 204 || result === undefined) {
         res.status(status === 200 ? 204 : status).end();
         return;

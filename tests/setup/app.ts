@@ -34,6 +34,8 @@ export interface SignedInAgent {
   agent: TestAgent;
   csrf: string;
   userId: number;
+  /** The session cookie (`rwb.sid=…`) as the callback set it, for replay tests. */
+  cookie: string;
   /** Headers every unsafe request needs: same-origin Origin and the CSRF token. */
   headers: Record<string, string>;
 }
@@ -77,6 +79,11 @@ export async function createTestApp(
     expect(callback.origin).toBe(config.appOrigin);
     const done = await a.get(callback.pathname + callback.search);
     expect(done.status, `sign-in as ${login} should finish`).toBe(303);
+    const cookie = ([] as string[])
+      .concat(done.headers['set-cookie'] ?? [])
+      .find((c) => c.startsWith('rwb.sid='))
+      ?.split(';')[0];
+    expect(cookie).toBeDefined();
     const me = await a.get('/api/me').expect(200);
     expect(me.body.user?.handle).toBe(login);
     const csrf = me.body.csrfToken as string;
@@ -84,6 +91,7 @@ export async function createTestApp(
       agent: a,
       csrf,
       userId: me.body.user.id as number,
+      cookie: cookie!,
       headers: { Origin: config.appOrigin, 'X-CSRF-Token': csrf },
     };
   }
