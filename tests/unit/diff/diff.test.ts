@@ -68,7 +68,9 @@ function sideBySide(rows: readonly DiffRow[]): [string, string][] {
 }
 
 function render(parts: readonly DiffPart[]): string {
-  return parts.map((p) => (p.kind === 'removed' ? `[-${p.text}-]` : p.kind === 'added' ? `{+${p.text}+}` : p.text)).join('');
+  return parts
+    .map((p) => (p.kind === 'removed' ? `[-${p.text}-]` : p.kind === 'added' ? `{+${p.text}+}` : p.text))
+    .join('');
 }
 
 // A small deterministic generator so property checks are repeatable.
@@ -78,7 +80,10 @@ function generator(seed: number) {
     state = (Math.imul(state, 1664525) + 1013904223) >>> 0;
     return state / 2 ** 32;
   };
-  return { int: (n: number) => Math.floor(next() * n), pick: <T>(items: readonly T[]) => items[Math.floor(next() * items.length)]! };
+  return {
+    int: (n: number) => Math.floor(next() * n),
+    pick: <T>(items: readonly T[]) => items[Math.floor(next() * items.length)]!,
+  };
 }
 
 describe('splitLines', () => {
@@ -198,9 +203,48 @@ describe('diffLinesForView', () => {
     expect(inline(rows)).toEqual(['  1 1 constructor', '- 2 . __proto__', '+ . 2 hasOwnProperty', '  3 3 toString']);
   });
 
+  it('shows a wholesale rewrite as one replaced block between the unchanged head and tail', () => {
+    // 2,800 line edits: beyond the exact diff's budget, so the coarse fallback runs.
+    const old = [
+      '# Log',
+      ...Array.from({ length: 700 }, (_, i) => `x${i}`),
+      'middle',
+      ...Array.from({ length: 700 }, (_, i) => `x${i + 700}`),
+      'end',
+    ];
+    const now = [
+      '# Log',
+      ...Array.from({ length: 700 }, (_, i) => `y${i}`),
+      'middle',
+      ...Array.from({ length: 700 }, (_, i) => `y${i + 700}`),
+      'end',
+    ];
+    const rows = diffLinesForView(old.join('\n'), now.join('\n'));
+    expect(rows[0]).toEqual({ kind: 'same', oldNumber: 1, newNumber: 1, oldText: '# Log', newText: '# Log' });
+    expect(rows.at(-1)).toEqual({ kind: 'same', oldNumber: 1403, newNumber: 1403, oldText: 'end', newText: 'end' });
+    expect(rows.find((row) => row.kind === 'same' && row.oldText === 'middle')).toEqual({
+      kind: 'same',
+      oldNumber: 702,
+      newNumber: 702,
+      oldText: 'middle',
+      newText: 'middle',
+    });
+    expect(diffStats(rows)).toEqual({ added: 1400, removed: 1400, changed: 0 });
+    expect(rows.flatMap((row) => (row.kind === 'added' ? [] : [row.oldText]))).toEqual(old);
+    expect(rows.flatMap((row) => (row.kind === 'removed' ? [] : [row.newText]))).toEqual(now);
+  });
+
   it('rebuilds both documents exactly from the rows (random edits)', () => {
     const g = generator(7);
-    const vocabulary = ['## Power', '', '- R3: 4.7k', 'The LDO runs warm.', 'The LDO runs hot.', '1. Solder U3 first.', '`SDA` on pin 5'];
+    const vocabulary = [
+      '## Power',
+      '',
+      '- R3: 4.7k',
+      'The LDO runs warm.',
+      'The LDO runs hot.',
+      '1. Solder U3 first.',
+      '`SDA` on pin 5',
+    ];
     for (let round = 0; round < 300; round++) {
       const make = () => Array.from({ length: g.int(9) }, () => g.pick(vocabulary));
       const oldLines = make();
@@ -342,8 +386,16 @@ describe('diffWords', () => {
       const before = make();
       const after = make();
       const parts = diffWords(before, after);
-      expect(partsForSide(parts, 'old').map((p) => p.text).join('')).toBe(before);
-      expect(partsForSide(parts, 'new').map((p) => p.text).join('')).toBe(after);
+      expect(
+        partsForSide(parts, 'old')
+          .map((p) => p.text)
+          .join(''),
+      ).toBe(before);
+      expect(
+        partsForSide(parts, 'new')
+          .map((p) => p.text)
+          .join(''),
+      ).toBe(after);
     }
   });
 });
@@ -444,7 +496,11 @@ describe('diffFields', () => {
   });
 
   it('shows numbers and flags as before and after values', () => {
-    const changes = diffFields({ boards: 3, published: false }, { boards: 5, published: true }, { boards: 'Boards built', published: 'Published' });
+    const changes = diffFields(
+      { boards: 3, published: false },
+      { boards: 5, published: true },
+      { boards: 'Boards built', published: 'Published' },
+    );
     expect(changes).toEqual([
       { field: 'boards', label: 'Boards built', kind: 'value', before: 3, after: 5 },
       { field: 'published', label: 'Published', kind: 'value', before: false, after: true },
