@@ -48,8 +48,9 @@ const IGNORABLE = /[\u0000-\u0020\u007F-\u00A0\u00AD\u1680\u180E\u2000-\u200F\u2
 const { unescapeAll, escapeHtml } = markdownIt().utils;
 
 function decodeOnce(value: string): string {
-  return unescapeAll(value)
-    .replace(/%([0-9A-Fa-f]{2})/g, (_, hex: string) => String.fromCharCode(Number.parseInt(hex, 16)));
+  return unescapeAll(value).replace(/%([0-9A-Fa-f]{2})/g, (_, hex: string) =>
+    String.fromCharCode(Number.parseInt(hex, 16)),
+  );
 }
 
 /**
@@ -67,7 +68,8 @@ function inspectable(url: string): string {
   return current.replace(IGNORABLE, '');
 }
 
-type UrlKind = { kind: 'scheme'; scheme: string } | { kind: 'app-path' } | { kind: 'network-path' } | { kind: 'relative' };
+type UrlKind =
+  { kind: 'scheme'; scheme: string } | { kind: 'app-path' } | { kind: 'network-path' } | { kind: 'relative' };
 
 function classifyUrl(url: string): UrlKind {
   const value = inspectable(url);
@@ -241,7 +243,8 @@ function headingIds(state: StateCore): void {
 
 // --- renderer rules --------------------------------------------------------------------------
 
-const SAFE_LANGUAGE = /^[A-Za-z0-9_+#.-]{1,32}$/;
+const LANGUAGE_TOKEN = '[A-Za-z0-9_+#.-]{1,32}';
+const SAFE_LANGUAGE = new RegExp(`^${LANGUAGE_TOKEN}$`);
 
 /**
  * A markdown-it instance with Reworkbook's syntax and link policy. Heading ids and the table of
@@ -286,26 +289,49 @@ export function createMarkdownIt(): MarkdownIt {
 // --- sanitizer -------------------------------------------------------------------------------
 
 const LINK_REL = 'nofollow ugc noopener';
+const DEFAULT_ID_PREFIX = 'h-';
+const HEADINGS = ['h1', 'h2', 'h3', 'h4', 'h5', 'h6'] as const;
+const ALIGN_CLASSES = ['align-left', 'align-center', 'align-right'];
 
-const SANITIZE_OPTIONS: sanitizeHtml.IOptions = {
+const BASE_OPTIONS: sanitizeHtml.IOptions = {
   allowedTags: [
-    'p', 'h1', 'h2', 'h3', 'h4', 'h5', 'h6', 'a', 'img', 'strong', 'em', 's', 'code', 'pre', 'blockquote',
-    'ul', 'ol', 'li', 'input', 'table', 'thead', 'tbody', 'tr', 'th', 'td', 'hr', 'br',
+    ...HEADINGS,
+    'p',
+    'a',
+    'img',
+    'strong',
+    'em',
+    's',
+    'code',
+    'pre',
+    'blockquote',
+    'ul',
+    'ol',
+    'li',
+    'input',
+    'table',
+    'thead',
+    'tbody',
+    'tr',
+    'th',
+    'td',
+    'hr',
+    'br',
   ],
   allowedAttributes: {
-    h1: ['id'], h2: ['id'], h3: ['id'], h4: ['id'], h5: ['id'], h6: ['id'],
+    ...Object.fromEntries(HEADINGS.map((tag) => [tag, ['id']])),
     a: ['href', 'title', 'rel'],
     img: ['src', 'alt', 'title', 'width', 'height'],
     ol: ['start'],
     li: [{ name: 'data-checked', multiple: false, values: ['true', 'false'] }],
-    input: [{ name: 'type', multiple: false, values: ['checkbox'] }, 'checked', 'disabled'],
+    input: ['type', 'checked', 'disabled'],
   },
   // `class` is deliberately absent from allowedAttributes: listed there it would let any class through.
   allowedClasses: {
-    code: ['language-*'],
+    code: [new RegExp(`^language-${LANGUAGE_TOKEN}$`)],
     li: ['task-item'],
-    th: ['align-left', 'align-center', 'align-right'],
-    td: ['align-left', 'align-center', 'align-right'],
+    th: ALIGN_CLASSES,
+    td: ALIGN_CLASSES,
   },
   allowedSchemes: ['http', 'https', 'mailto'],
   allowedSchemesByTag: { img: ['http', 'https'] },
@@ -313,17 +339,40 @@ const SANITIZE_OPTIONS: sanitizeHtml.IOptions = {
   allowProtocolRelative: false,
   allowedStyles: {},
   disallowedTagsMode: 'discard',
-  // Every link gets the same rel, whatever came before: user content earns no ranking and gets
-  // no handle on this window.
-  transformTags: { a: sanitizeHtml.simpleTransform('a', { rel: LINK_REL }) },
 };
+
+const ID_CHARS = /^[\p{L}\p{N}_-]+$/u;
+
+function optionsFor(idPrefix: string): sanitizeHtml.IOptions {
+  const heading: sanitizeHtml.Transformer = (tagName, attribs) => {
+    const id = attribs.id;
+    // Only ids this renderer made may stay: anything else could shadow an element of the app.
+    const kept: sanitizeHtml.Attributes =
+      id !== undefined && id.startsWith(idPrefix) && ID_CHARS.test(id) ? { id } : {};
+    return { tagName, attribs: kept };
+  };
+  return {
+    ...BASE_OPTIONS,
+    transformTags: {
+      ...Object.fromEntries(HEADINGS.map((tag) => [tag, heading])),
+      // Every link gets the same rel, whatever came before: user content earns no ranking and
+      // gets no handle on this window.
+      a: sanitizeHtml.simpleTransform('a', { rel: LINK_REL }),
+      // The only input the renderer makes is a read-only checkbox; any other kind is a form field.
+      input: (tagName, attribs) => ({
+        tagName,
+        attribs: { type: 'checkbox', disabled: '', ...('checked' in attribs ? { checked: '' } : {}) },
+      }),
+    },
+  };
+}
 
 /**
  * The allow-list pass over renderer output. Exported so tests can prove it holds on its own,
  * without markdown-it's escaping in front of it.
  */
-export function sanitizeRendered(html: string): string {
-  return sanitizeHtml(html, SANITIZE_OPTIONS);
+export function sanitizeRendered(html: string, idPrefix = DEFAULT_ID_PREFIX): string {
+  return sanitizeHtml(html, optionsFor(idPrefix));
 }
 
 // --- entry points ----------------------------------------------------------------------------
@@ -344,11 +393,11 @@ function assertWithinLimit(markdown: string): void {
 /** Markdown to sanitized HTML plus the h1–h4 table of contents. */
 export function renderMarkdown(markdown: string, options: RenderOptions = {}): RenderedMarkdown {
   assertWithinLimit(markdown);
-  const idPrefix = options.idPrefix ?? 'h-';
+  const idPrefix = options.idPrefix ?? DEFAULT_ID_PREFIX;
   // The prefix is ours, not the author's; a bad one is a programming error.
   if (!ID_PREFIX.test(idPrefix)) throw new TypeError(`Invalid heading id prefix: ${JSON.stringify(idPrefix)}`);
   const doc: DocumentState = { idPrefix, usedIds: new Set(), nextSuffix: new Map(), toc: [] };
-  const html = sanitizeRendered(md.render(markdown, { [DOCUMENT]: doc }));
+  const html = sanitizeRendered(md.render(markdown, { [DOCUMENT]: doc }), idPrefix);
   return { html, toc: doc.toc };
 }
 
@@ -359,7 +408,8 @@ export function plainTextOf(markdown: string): string {
   assertWithinLimit(markdown);
   const blocks: string[] = [];
   for (const token of md.parse(markdown, {})) {
-    const text = token.type === 'inline' ? textOf(token.children ?? []) : BLOCK_CODE.has(token.type) ? token.content : '';
+    const text =
+      token.type === 'inline' ? textOf(token.children ?? []) : BLOCK_CODE.has(token.type) ? token.content : '';
     const line = collapse(text);
     if (line) blocks.push(line);
   }
