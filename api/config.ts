@@ -52,20 +52,6 @@ const envSchema = z
     GITHUB_CLIENT_SECRET: optionalText,
     FAKE_GITHUB_PORT: port.default(3001),
 
-    SMTP_URL: optionalUrl,
-    MAIL_FROM: z.string().min(3).default('Reworkbook <notifications@reworkbook.invalid>'),
-    FAKE_SMTP_PORT: port.default(2525),
-
-    MEILISEARCH_URL: optionalUrl,
-    MEILISEARCH_KEY: optionalText,
-
-    UPLOADS_DIR: z.string().min(1).default('uploads'),
-    S3_ENDPOINT: optionalUrl,
-    S3_BUCKET: optionalText,
-    S3_REGION: z.string().default('us-east-1'),
-    S3_ACCESS_KEY_ID: optionalText,
-    S3_SECRET_ACCESS_KEY: optionalText,
-
     LOG_LEVEL: z.enum(['debug', 'info', 'warn', 'error', 'silent']).default('info'),
   })
   .superRefine((env, ctx) => {
@@ -92,7 +78,6 @@ export interface Config extends Env {
   appOrigin: string;
   sessionSecret: string;
   dataDir: string;
-  uploadsDir: string;
   useFakeGithub: boolean;
   production: boolean;
 }
@@ -124,7 +109,6 @@ export function loadConfig(source: NodeJS.ProcessEnv = process.env): Config {
     // Development and tests only: production refuses to start without a real secret (above).
     sessionSecret: env.SESSION_SECRET ?? 'development-only-session-secret-do-not-use',
     dataDir: resolve(env.PG_DATA_DIR),
-    uploadsDir: resolve(env.UPLOADS_DIR),
     useFakeGithub: !env.GITHUB_CLIENT_ID,
     production: env.NODE_ENV === 'production',
   };

@@ -1,0 +1,33 @@
+/**
+ * The servers under load, in their own process so the load generator (autocannon, in the
+ * parent) does not share their event loop. Prints one JSON line with the URLs, then waits.
+ */
+import express from 'express';
+import { createApp } from '../../api/app';
+import { loadConfig } from '../../api/config';
+import type { AppContext } from '../../api/context';
+import { fakeGithubEndpoints } from '../../api/fakes/github';
+import { createLogger } from '../../api/log';
+import { createDatabase } from '../../db/client';
+import { listen } from './harness';
+
+const databaseUrl = process.env.BENCH_DATABASE_URL!;
+const bare = express();
+bare.get('/json', (_req, res) => {
+  res.json({ status: 'ok' });
+});
+const database = createDatabase(databaseUrl, { max: 10, log: () => {} });
+const config = loadConfig({ NODE_ENV: 'production', SESSION_SECRET: 'b'.repeat(40), APP_ORIGIN: 'http://127.0.0.1', LOG_LEVEL: 'silent' });
+const ctx: AppContext = {
+  config,
+  database,
+  db: database.db,
+  log: createLogger('silent'),
+  github: fakeGithubEndpoints('http://127.0.0.1:9', 'bench', 'bench'),
+};
+const a = await listen(bare);
+const b = await listen(createApp(ctx).app);
+console.log(JSON.stringify({ bare: a.url, app: b.url }));
+process.on('SIGTERM', () => {
+  void Promise.all([a.close(), b.close(), database.close()]).then(() => process.exit(0));
+});
