@@ -1,12 +1,29 @@
 import type { RouteRecordInfo } from 'vue-router';
 
 type NoParams = Record<never, never>;
+type Slug = { slug: string };
+type SlugDoc = { slug: string; documentId: string | number };
+type SlugDocOut = { slug: string; documentId: string };
 
 /** Every named route with its params; keep in step with routes.ts. */
 export interface RouteNamedMap {
   home: RouteRecordInfo<'home', '/', NoParams, NoParams>;
   'sign-in': RouteRecordInfo<'sign-in', '/sign-in', NoParams, NoParams>;
+  'my-projects': RouteRecordInfo<'my-projects', '/me/projects', NoParams, NoParams>;
+  'project-new': RouteRecordInfo<'project-new', '/new', NoParams, NoParams>;
+  project: RouteRecordInfo<'project', '/projects/:slug', Slug, Slug>;
+  'project-settings': RouteRecordInfo<'project-settings', '/projects/:slug/settings', Slug, Slug>;
+  'project-history': RouteRecordInfo<'project-history', '/projects/:slug/history', Slug, Slug>;
+  'log-entry': RouteRecordInfo<'log-entry', '/projects/:slug/log/:documentId', SlugDoc, SlugDocOut>;
+  'document-edit': RouteRecordInfo<'document-edit', '/projects/:slug/documents/:documentId/edit', SlugDoc, SlugDocOut>;
+  'document-history': RouteRecordInfo<
+    'document-history',
+    '/projects/:slug/documents/:documentId/history',
+    SlugDoc,
+    SlugDocOut
+  >;
   'admin-users': RouteRecordInfo<'admin-users', '/admin/users', NoParams, NoParams>;
+  'admin-deleted-projects': RouteRecordInfo<'admin-deleted-projects', '/admin/projects', NoParams, NoParams>;
   'not-found': RouteRecordInfo<
     'not-found',
     '/:pathMatch(.*)*',
