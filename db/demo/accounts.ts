@@ -22,7 +22,7 @@ export const demoAccounts: DemoAccount[] = [
     name: 'Ilse Marrow',
     email: 'ilse@makers.invalid',
     role: 'member',
-    purpose: 'maker: owns the greenhouse controller, the bench supply and the tide clock',
+    purpose: 'maker: owns the greenhouse vent controller and the bench supply monitor',
   },
   {
     githubId: 81_000_002,
@@ -30,7 +30,7 @@ export const demoAccounts: DemoAccount[] = [
     name: 'Juniper Okoye',
     email: 'juniper@makers.invalid',
     role: 'member',
-    purpose: 'maker: editor on the greenhouse controller, owns the pedal looper',
+    purpose: 'maker: editor on the greenhouse vent controller, owns the tide clock',
   },
   {
     githubId: 81_000_003,
