@@ -16,6 +16,8 @@ import { ApiRoutes } from './http/routes';
 import { apiNotFound, errorHandler } from './middleware/errors';
 import { registerOpenApiRoute } from './openapi/router';
 import { registerUserRoutes } from './users/router';
+import { registerProjectRoutes } from './projects/router';
+import { registerDocumentRoutes } from './documents/router';
 
 export interface BuiltApp {
   app: Express;
@@ -35,6 +37,8 @@ function registerRoutes(routes: ApiRoutes, ctx: AppContext, passport: ReturnType
   registerOpenApiRoute(routes, ctx);
   registerAuthRoutes(routes, ctx, passport);
   registerUserRoutes(routes, ctx);
+  registerProjectRoutes(routes, ctx);
+  registerDocumentRoutes(routes, ctx);
 }
 
 export function createApp(ctx: AppContext, options: AppOptions = {}): BuiltApp {

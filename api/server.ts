@@ -15,6 +15,7 @@ import type { Config } from './config';
 import { realGithub, type AppContext } from './context';
 import { fakeGithubEndpoints, startFakeGithub } from './fakes/github';
 import { createLogger, type Logger } from './log';
+import { startMaintenance } from './maintenance';
 
 export const FAKE_CLIENT = { id: 'reworkbook-local', secret: 'reworkbook-local-secret' };
 
@@ -77,6 +78,7 @@ export async function startServer(config: Config, options: StartOptions = {}): P
     }
 
     const ctx: AppContext = { config, database, db: database.db, log, github };
+    stops.push(startMaintenance(ctx));
     const { app } = createApp(ctx, options.clientDir ? { clientDir: options.clientDir } : {});
     const server = await new Promise<Server>((resolve, reject) => {
       const s = app.listen(config.PORT, config.HOST, () => resolve(s));

@@ -48,6 +48,8 @@ export interface RequestState {
  */
 export interface AccessRule {
   name: string;
+  /** True when some anonymous requests pass (e.g. reading a published project). */
+  allowsAnonymous?: boolean;
   check(state: RequestState): Promise<void> | void;
 }
 
@@ -57,7 +59,7 @@ function requireUser(state: RequestState): AuthUser {
 }
 
 export const access = {
-  public: { name: 'public', check: () => {} },
+  public: { name: 'public', allowsAnonymous: true, check: () => {} },
   signedIn: {
     name: 'signed-in',
     check: (s) => {
@@ -108,6 +110,7 @@ export interface RouteInfo {
   method: Method;
   path: string;
   access: string;
+  allowsAnonymous: boolean;
   summary: string;
 }
 
@@ -186,7 +189,13 @@ export class ApiRoutes {
     if (UNSAFE.has(method) && spec.csrfExempt !== undefined && spec.csrfExempt.trim().length < 10) {
       throw new Error(`${method.toUpperCase()} ${path}: a CSRF exemption needs its reason`);
     }
-    this.table.push({ method, path, access: spec.access.name, summary: spec.summary });
+    this.table.push({
+      method,
+      path,
+      access: spec.access.name,
+      allowsAnonymous: spec.access.allowsAnonymous === true,
+      summary: spec.summary,
+    });
     this.document(method, path, spec);
     const ctx = this.ctx;
     const unsafe = UNSAFE.has(method);
@@ -216,7 +225,7 @@ export class ApiRoutes {
       // The response schema strips anything a query returned that the contract does not expose.
       res.status(status).json(spec.response ? spec.response.parse(result) : result);
     };
-    if (spec.session === false && (unsafe || spec.access !== access.public)) {
+    if (spec.session === false && (unsafe || spec.access.name !== 'public')) {
       throw new Error(`${method.toUpperCase()} ${path}: only public GET routes may skip the session`);
     }
     const target = spec.session === false ? this.bareRouter : this.router;

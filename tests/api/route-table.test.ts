@@ -47,8 +47,8 @@ describe('the route table (deny by default)', () => {
     }
   });
 
-  it('refuses anonymous readers on every route that is not public', async () => {
-    const guarded = t.routes.table.filter((r) => r.access !== 'public');
+  it('refuses anonymous callers on every route whose rule admits no anonymous request', async () => {
+    const guarded = t.routes.table.filter((r) => !r.allowsAnonymous);
     expect(guarded.length).toBeGreaterThan(0);
     for (const route of guarded) {
       const res = await t.agent()[route.method](`/api${concrete(route.path)}`).set('Origin', t.config.appOrigin).send({});

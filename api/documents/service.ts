@@ -1,0 +1,244 @@
+import type {
+  DocumentDetail,
+  DocumentSaveResult,
+  NewLogEntry,
+  NewSection,
+  ProjectDetail,
+  RevisionDetail,
+  RevisionList,
+} from '../../shared/contracts/projects';
+import type { ProjectRole } from '../../shared/domain';
+import type { Tx } from '../../db/client';
+import type { AppContext } from '../context';
+import { fail } from '../http/errors';
+import type { AuthUser } from '../http/routes';
+import { renderCached } from '../markdown/cache';
+import type { ProjectRow } from '../projects/queries';
+import * as projectQueries from '../projects/queries';
+import { projectDetail, viewerOf } from '../projects/service';
+import * as revisionQueries from '../revisions/queries';
+import { toRevisionDetail, toRevisionSummary } from '../revisions/present';
+import { saveVersioned, type VersionedStore } from '../revisions/versioned';
+import * as q from './queries';
+
+export function toDocumentDetail(
+  project: ProjectRow,
+  doc: q.DocumentRow,
+  role: ProjectRole | null,
+  user: AuthUser | null,
+): DocumentDetail {
+  const rendered = renderCached(`doc:${doc.id}:${doc.currentRevision}`, doc.body, `d${doc.id}-`);
+  return {
+    id: doc.id,
+    kind: doc.kind,
+    title: doc.title,
+    position: doc.position,
+    loggedOn: doc.loggedOn,
+    revision: doc.currentRevision,
+    html: rendered.html,
+    toc: rendered.toc,
+    updatedAt: doc.updatedAt.toISOString(),
+    body: doc.body,
+    projectSlug: project.slug,
+    projectTitle: project.title,
+    projectStatus: project.status,
+    viewer: viewerOf(role, user),
+  };
+}
+
+async function load(ctx: AppContext, project: ProjectRow, id: number): Promise<q.DocumentRow> {
+  const doc = await q.findDocument(ctx.db, project.id, id);
+  if (!doc) throw fail.notFound('The section or log entry');
+  return doc;
+}
+
+export async function getDocument(
+  ctx: AppContext,
+  project: ProjectRow,
+  role: ProjectRole | null,
+  user: AuthUser | null,
+  id: number,
+): Promise<DocumentDetail> {
+  return toDocumentDetail(project, await load(ctx, project, id), role, user);
+}
+
+export async function addSection(
+  ctx: AppContext,
+  user: AuthUser,
+  project: ProjectRow,
+  role: ProjectRole | null,
+  input: Required<NewSection>,
+): Promise<DocumentDetail> {
+  const doc = await ctx.db.transaction(async (tx) => {
+    const created = await q.insertDocumentWithRevision(tx, {
+      projectId: project.id,
+      kind: 'section',
+      title: input.title,
+      body: input.body,
+      position: await q.nextSectionPosition(tx, project.id),
+      loggedOn: null,
+      authorId: user.id,
+    });
+    await projectQueries.touchProject(tx, project.id);
+    return created;
+  });
+  return toDocumentDetail(project, doc, role, user);
+}
+
+export async function addLogEntry(
+  ctx: AppContext,
+  user: AuthUser,
+  project: ProjectRow,
+  role: ProjectRole | null,
+  input: Required<NewLogEntry>,
+): Promise<DocumentDetail> {
+  const doc = await ctx.db.transaction(async (tx) => {
+    const created = await q.insertDocumentWithRevision(tx, {
+      projectId: project.id,
+      kind: 'log_entry',
+      title: input.title,
+      body: input.body,
+      position: 0,
+      loggedOn: input.loggedOn,
+      authorId: user.id,
+    });
+    await projectQueries.touchProject(tx, project.id);
+    return created;
+  });
+  return toDocumentDetail(project, doc, role, user);
+}
+
+export function documentStore(project: ProjectRow, doc: q.DocumentRow): VersionedStore<q.DocumentFields> {
+  return {
+    subject: 'document',
+    subjectId: doc.id,
+    projectId: project.id,
+    textFields: ['body'],
+    async loadCurrent(tx: Tx) {
+      const row = await q.lockDocument(tx, project.id, doc.id);
+      if (!row) throw fail.notFound('The section or log entry');
+      return { revision: row.currentRevision, fields: q.fieldsOf(row) };
+    },
+    write: (tx, expected, fields) => q.writeDocument(tx, doc.id, expected, fields),
+    toRow: (fields) => ({ title: fields.title, body: fields.body, fields: { loggedOn: fields.loggedOn } }),
+    fromRow: (row) => ({
+      title: row.title ?? '',
+      body: row.body ?? '',
+      loggedOn: ((row.fields as { loggedOn?: string | null } | null)?.loggedOn ?? null) as string | null,
+    }),
+  };
+}
+
+export interface DocumentSave {
+  title: string;
+  body: string;
+  loggedOn: string | null;
+  message: string;
+}
+
+export async function saveDocument(
+  ctx: AppContext,
+  user: AuthUser,
+  project: ProjectRow,
+  role: ProjectRole | null,
+  id: number,
+  input: DocumentSave,
+  baseRevision: number,
+  origin: 'edit' | 'restore' | 'resolve' = 'edit',
+  credit?: { userId: number; proposalId: number },
+): Promise<DocumentSaveResult> {
+  const doc = await load(ctx, project, id);
+  if (doc.kind === 'log_entry' && !input.loggedOn) {
+    throw fail.validation('A log entry needs its date.', { issues: [{ path: 'loggedOn', message: 'required' }] });
+  }
+  const fields: q.DocumentFields = {
+    title: input.title,
+    body: input.body,
+    loggedOn: doc.kind === 'log_entry' ? input.loggedOn : null,
+  };
+  const result = await saveVersioned(
+    ctx.db,
+    documentStore(project, doc),
+    {
+      authorId: user.id,
+      baseRevision,
+      fields,
+      message: input.message,
+      origin: credit ? 'proposal' : origin,
+      creditedUserId: credit?.userId ?? null,
+      proposalId: credit?.proposalId ?? null,
+    },
+    (tx) => projectQueries.touchProject(tx, project.id),
+  );
+  return {
+    outcome: result.outcome,
+    mergedWith: result.mergedWith,
+    document: toDocumentDetail(project, await load(ctx, project, id), role, user),
+  };
+}
+
+export async function removeDocument(ctx: AppContext, project: ProjectRow, id: number): Promise<void> {
+  if (!(await q.softDeleteDocument(ctx.db, project.id, id))) throw fail.notFound('The section or log entry');
+  await projectQueries.touchProject(ctx.db, project.id);
+}
+
+export async function reorderSections(
+  ctx: AppContext,
+  user: AuthUser,
+  project: ProjectRow,
+  role: ProjectRole | null,
+  ids: number[],
+): Promise<ProjectDetail> {
+  await ctx.db.transaction(async (tx) => {
+    const current = new Set(await projectQueries.sectionIds(tx, project.id));
+    const given = new Set(ids);
+    if (given.size !== ids.length || current.size !== given.size || [...current].some((id) => !given.has(id))) {
+      throw fail.validation('Give every section of the project exactly once, in the new order.', {
+        issues: [{ path: 'ids', message: `expected the ${current.size} section ids of this project` }],
+      });
+    }
+    await projectQueries.setSectionPositions(tx, project.id, ids);
+    await projectQueries.touchProject(tx, project.id);
+  });
+  return projectDetail(ctx, project, role, user);
+}
+
+export async function documentRevisions(ctx: AppContext, project: ProjectRow, id: number): Promise<RevisionList> {
+  const doc = await load(ctx, project, id);
+  const rows = await revisionQueries.listRevisions(ctx.db, 'document', doc.id);
+  return { items: rows.map(toRevisionSummary) };
+}
+
+export async function documentRevision(ctx: AppContext, project: ProjectRow, id: number, number: number): Promise<RevisionDetail> {
+  const doc = await load(ctx, project, id);
+  const row = await revisionQueries.findRevision(ctx.db, 'document', doc.id, number);
+  if (!row) throw fail.notFound(`Revision ${number}`);
+  return toRevisionDetail(row);
+}
+
+/** Restoring appends: the chosen revision's content becomes a new revision; history stays. */
+export async function restoreDocumentRevision(
+  ctx: AppContext,
+  user: AuthUser,
+  project: ProjectRow,
+  role: ProjectRole | null,
+  id: number,
+  number: number,
+  baseRevision: number,
+  message: string,
+): Promise<DocumentSaveResult> {
+  const doc = await load(ctx, project, id);
+  const row = await revisionQueries.findRevision(ctx.db, 'document', doc.id, number);
+  if (!row) throw fail.notFound(`Revision ${number}`);
+  const fields = documentStore(project, doc).fromRow(row);
+  return saveDocument(
+    ctx,
+    user,
+    project,
+    role,
+    id,
+    { ...fields, message: message || `Restored revision ${number}` },
+    baseRevision,
+    'restore',
+  );
+}

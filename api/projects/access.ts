@@ -1,0 +1,46 @@
+/**
+ * Access rules for everything under /projects/:slug. A draft is visible only to its owner and
+ * editors (and admins); to anyone else it does not exist (404), so drafts leak nothing.
+ */
+import type { ProjectRole } from '../../shared/domain';
+import { fail } from '../http/errors';
+import type { AccessRule, RequestState } from '../http/routes';
+import { findProjectBySlug, memberRole, type ProjectRow } from './queries';
+
+export type ProjectNeed = 'read' | 'edit' | 'own';
+
+export interface ProjectLocals {
+  project: ProjectRow;
+  role: ProjectRole | null;
+}
+
+export function canRead(project: ProjectRow, role: ProjectRole | null, siteRole: string | undefined): boolean {
+  if (role || siteRole === 'admin') return true;
+  return project.status === 'published' && project.hiddenAt === null;
+}
+
+export function projectAccess(need: ProjectNeed): AccessRule {
+  return {
+    name: need === 'read' ? 'project reader' : need === 'edit' ? 'project editor or owner' : 'project owner',
+    allowsAnonymous: need === 'read',
+    async check(state: RequestState) {
+      if (need !== 'read' && !state.user) throw fail.unauthenticated();
+      const slug = state.req.params.slug;
+      const project = typeof slug === 'string' ? await findProjectBySlug(state.ctx.db, slug) : undefined;
+      if (!project) throw fail.notFound('The project');
+      const role = state.user ? await memberRole(state.ctx.db, project.id, state.user.id) : null;
+      if (!canRead(project, role, state.user?.role)) throw fail.notFound('The project');
+      if (need === 'edit' && !role) throw fail.forbidden('Only the owner and editors of this project can change it.');
+      if (need === 'own' && role !== 'owner') throw fail.forbidden('Only the owner of this project can do this.');
+      const locals: ProjectLocals = { project, role };
+      Object.assign(state.locals, locals);
+    },
+  };
+}
+
+/** The project and the viewer's role, as the access rule resolved them. */
+export function projectOf(locals: Record<string, unknown>): ProjectLocals {
+  const { project, role } = locals as unknown as ProjectLocals;
+  if (!project) throw new Error('projectOf() used on a route without a project access rule');
+  return { project, role };
+}
