@@ -25,7 +25,6 @@ export function toDocumentDetail(
   project: ProjectRow,
   doc: q.DocumentRow,
   role: ProjectRole | null,
-  user: AuthUser | null,
 ): DocumentDetail {
   const rendered = renderCached(`doc:${doc.id}:${doc.currentRevision}`, doc.body, `d${doc.id}-`);
   return {
@@ -42,7 +41,7 @@ export function toDocumentDetail(
     projectSlug: project.slug,
     projectTitle: project.title,
     projectStatus: project.status,
-    viewer: viewerOf(role, user),
+    viewer: viewerOf(role),
   };
 }
 
@@ -59,7 +58,7 @@ export async function getDocument(
   user: AuthUser | null,
   id: number,
 ): Promise<DocumentDetail> {
-  return toDocumentDetail(project, await load(ctx, project, id), role, user);
+  return toDocumentDetail(project, await load(ctx, project, id), role);
 }
 
 export async function addSection(
@@ -82,7 +81,7 @@ export async function addSection(
     await projectQueries.touchProject(tx, project.id);
     return created;
   });
-  return toDocumentDetail(project, doc, role, user);
+  return toDocumentDetail(project, doc, role);
 }
 
 export async function addLogEntry(
@@ -105,7 +104,7 @@ export async function addLogEntry(
     await projectQueries.touchProject(tx, project.id);
     return created;
   });
-  return toDocumentDetail(project, doc, role, user);
+  return toDocumentDetail(project, doc, role);
 }
 
 export function documentStore(project: ProjectRow, doc: q.DocumentRow): VersionedStore<q.DocumentFields> {
@@ -173,7 +172,7 @@ export async function saveDocument(
   return {
     outcome: result.outcome,
     mergedWith: result.mergedWith,
-    document: toDocumentDetail(project, await load(ctx, project, id), role, user),
+    document: toDocumentDetail(project, await load(ctx, project, id), role),
   };
 }
 
@@ -200,7 +199,7 @@ export async function reorderSections(
     await projectQueries.setSectionPositions(tx, project.id, ids);
     await projectQueries.touchProject(tx, project.id);
   });
-  return projectDetail(ctx, project, role, user);
+  return projectDetail(ctx, project, role);
 }
 
 export async function documentRevisions(ctx: AppContext, project: ProjectRow, id: number): Promise<RevisionList> {

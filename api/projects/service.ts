@@ -123,7 +123,7 @@ export async function createProject(ctx: AppContext, user: AuthUser, input: Crea
       }
       return row;
     });
-    return projectDetail(ctx, project, 'owner', user);
+    return projectDetail(ctx, project, 'owner');
   } catch (error) {
     if (isUniqueViolation(error, 'projects_slug_key')) {
       const suggestion = await freeSlug(ctx, slug);
@@ -170,7 +170,8 @@ export function toDocumentSummary(doc: Awaited<ReturnType<typeof q.listLiveDocum
   };
 }
 
-export function viewerOf(role: ProjectRole | null, user: AuthUser | null) {
+/** What the viewer may do here; members edit, the owner also manages editors and deletion. */
+export function viewerOf(role: ProjectRole | null) {
   return { canEdit: role !== null, canOwn: role === 'owner', canRestore: role !== null };
 }
 
@@ -178,7 +179,6 @@ export async function projectDetail(
   ctx: AppContext,
   project: ProjectRow,
   role: ProjectRole | null,
-  user: AuthUser | null,
 ): Promise<ProjectDetail> {
   const [owner, members, boards, docs] = await Promise.all([
     q.findOwner(ctx.db, project.ownerId),
@@ -205,7 +205,7 @@ export async function projectDetail(
     createdAt: project.createdAt.toISOString(),
     updatedAt: project.updatedAt.toISOString(),
     publishedAt: iso(project.publishedAt),
-    viewer: viewerOf(role, user),
+    viewer: viewerOf(role),
   };
 }
 
@@ -255,7 +255,7 @@ export async function updateProjectMeta(
   return {
     outcome: result.outcome,
     mergedWith: result.mergedWith,
-    project: await projectDetail(ctx, await reload(ctx, project), role, user),
+    project: await projectDetail(ctx, await reload(ctx, project), role),
   };
 }
 
@@ -267,7 +267,7 @@ export async function setPublished(
   published: boolean,
 ): Promise<ProjectDetail> {
   await q.setStatus(ctx.db, project.id, published ? 'published' : 'draft');
-  return projectDetail(ctx, await reload(ctx, project), role, user);
+  return projectDetail(ctx, await reload(ctx, project), role);
 }
 
 /** Soft delete: gone for everyone at once, restorable by an admin for RESTORE_DAYS. */
@@ -319,7 +319,7 @@ export async function restoreDeletedProject(ctx: AppContext, admin: AuthUser, sl
       after: { deleted: false },
     });
   });
-  return projectDetail(ctx, await reload(ctx, project), null, admin);
+  return projectDetail(ctx, await reload(ctx, project), null);
 }
 
 /** Hard-deletes projects whose restore window has passed. Returns their slugs. */
@@ -333,7 +333,7 @@ export async function addEditor(ctx: AppContext, owner: AuthUser, project: Proje
   const current = await q.memberRole(ctx.db, project.id, member.id);
   if (current === 'owner') throw fail.conflict('The owner already has every right on the project.');
   await q.addMember(ctx.db, project.id, member.id, 'editor');
-  return projectDetail(ctx, project, 'owner', owner);
+  return projectDetail(ctx, project, 'owner');
 }
 
 export async function removeEditor(ctx: AppContext, owner: AuthUser, project: ProjectRow, handle: string): Promise<ProjectDetail> {
@@ -341,7 +341,7 @@ export async function removeEditor(ctx: AppContext, owner: AuthUser, project: Pr
   if (!member) throw fail.notFound(`Member @${handle}`);
   const removed = await q.removeMember(ctx.db, project.id, member.id);
   if (!removed) throw fail.notFound(`@${handle} as an editor of this project`);
-  return projectDetail(ctx, project, 'owner', owner);
+  return projectDetail(ctx, project, 'owner');
 }
 
 // --- board revisions -----------------------------------------------------------------------
