@@ -19,6 +19,8 @@ export interface NewRevision {
   fields?: unknown;
   contentHash: string;
   origin: string;
+  /** Only the demo seed backdates revisions; everything else is stamped by the database. */
+  createdAt?: Date;
 }
 
 /** Append one immutable revision (the database refuses any later UPDATE of it). */
