@@ -6,6 +6,7 @@ import os from 'node:os';
 
 const suites: Record<string, () => Promise<{ run(seconds: number): Promise<string[]> }>> = {
   http: () => import('./http.bench'),
+  writeups: () => import('./writeups.bench'),
 };
 
 const wanted = process.argv.slice(2);
