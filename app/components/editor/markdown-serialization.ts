@@ -140,10 +140,12 @@ function alignOf(cell: JSONContent): Align {
 }
 
 /**
- * A GFM table with padded columns and no blank lines around it (the document joins blocks
- * with one blank line already). A table cell is one line: the editor does not make hard breaks
- * in cells, and one that arrives anyway (pasted) is written as a space — `<br>` would show as
- * those four characters in our renderer, which has HTML off.
+ * A GFM table as people type one (`| Pin | Use |`, then `|---|---|`), cells not padded to a column width:
+ * padding would rewrite every row whenever one cell grows, so a one-word edit would show as a
+ * change to the whole table in the history and clash with any other edit to it. No blank lines
+ * around it either (the document joins blocks with one already). A table cell is one line: the
+ * editor does not make hard breaks in cells, and one that arrives anyway (pasted) is written as a
+ * space — `<br>` would show as those four characters in our renderer, which has HTML off.
  */
 export function renderGfmTable(node: JSONContent, helpers: MarkdownRendererHelpers): string {
   const rows = (node.content ?? []).map((row) =>
@@ -159,24 +161,17 @@ export function renderGfmTable(node: JSONContent, helpers: MarkdownRendererHelpe
   const columns = Math.max(0, ...rows.map((row) => row.length));
   if (columns === 0) return '';
 
-  const widths = Array.from({ length: columns }, (_, i) => Math.max(3, ...rows.map((row) => row[i]?.text.length ?? 0)));
   const aligns = Array.from({ length: columns }, (_, i) => rows.find((row) => row[i]?.align)?.[i]?.align ?? null);
-  const line = (cells: string[]) => `| ${cells.map((text, i) => text.padEnd(widths[i]!)).join(' | ')} |`;
+  const line = (cells: string[]) => `|${cells.map((text) => (text === '' ? ' ' : ` ${text} `)).join('|')}|`;
+  const cellsOf = (row: { text: string }[]) => Array.from({ length: columns }, (_, i) => row[i]?.text ?? '');
 
+  // Without a header row (only pasted tables lack one) an empty one keeps it a GFM table.
   const hasHeader = rows[0]!.some((cell) => cell.header);
   const header = hasHeader ? rows[0]! : [];
   const body = hasHeader ? rows.slice(1) : rows;
-  const delimiter = widths.map((width, i) => {
-    const align = aligns[i];
-    if (align === 'left') return `:${'-'.repeat(width - 1)}`;
-    if (align === 'right') return `${'-'.repeat(width - 1)}:`;
-    if (align === 'center') return `:${'-'.repeat(width - 2)}:`;
-    return '-'.repeat(width);
-  });
+  const delimiter = aligns.map((align) =>
+    align === 'left' ? ':---' : align === 'right' ? '---:' : align === 'center' ? ':---:' : '---',
+  );
 
-  return [
-    line(Array.from({ length: columns }, (_, i) => header[i]?.text ?? '')),
-    `| ${delimiter.join(' | ')} |`,
-    ...body.map((row) => line(Array.from({ length: columns }, (_, i) => row[i]?.text ?? ''))),
-  ].join('\n');
+  return [line(cellsOf(header)), `|${delimiter.join('|')}|`, ...body.map((row) => line(cellsOf(row)))].join('\n');
 }
