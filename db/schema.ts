@@ -146,6 +146,11 @@ export const projects = pgTable(
     coverUploadId: integer('cover_upload_id'),
     /** Number of the newest metadata revision (revisions.subject = 'project'). */
     currentRevision: integer('current_revision').notNull().default(1),
+    /**
+     * Bumped by every change to the project or anything shown on its page (documents, board
+     * revisions, members, status): readers' caches are keyed on it.
+     */
+    changeSeq: integer('change_seq').notNull().default(0),
     /** Erratum numbers are never reused: this counter only grows. */
     nextErratumNumber: integer('next_erratum_number').notNull().default(1),
     publishedAt: timestamp('published_at', { withTimezone: true }),

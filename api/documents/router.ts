@@ -82,9 +82,9 @@ export function registerDocumentRoutes(routes: ApiRoutes, ctx: AppContext) {
   routes.get(
     '/projects/:slug/documents/:documentId',
     { summary: 'A section or log entry (Markdown and rendered HTML)', tag, access: reader, params: documentParamsSchema, response: documentDetailSchema },
-    async ({ user, locals, params, res }) => {
+    async ({ locals, params, res }) => {
       const { project, role } = projectOf(locals);
-      const doc = await service.getDocument(ctx, project, role, user, params.documentId);
+      const doc = await service.getDocument(ctx, project, role, params.documentId);
       res.set('ETag', `"${doc.revision}"`);
       return doc;
     },

@@ -55,7 +55,6 @@ export async function getDocument(
   ctx: AppContext,
   project: ProjectRow,
   role: ProjectRole | null,
-  user: AuthUser | null,
   id: number,
 ): Promise<DocumentDetail> {
   return toDocumentDetail(project, await load(ctx, project, id), role);
@@ -199,7 +198,8 @@ export async function reorderSections(
     await projectQueries.setSectionPositions(tx, project.id, ids);
     await projectQueries.touchProject(tx, project.id);
   });
-  return projectDetail(ctx, project, role);
+  const fresh = await projectQueries.findProjectById(ctx.db, project.id);
+  return projectDetail(ctx, fresh ?? project, role);
 }
 
 export async function documentRevisions(ctx: AppContext, project: ProjectRow, id: number): Promise<RevisionList> {

@@ -143,15 +143,18 @@ export async function writeProjectMeta(
       repoUrl: fields.repoUrl || null,
       hazards: fields.hazards,
       currentRevision: sql`${projects.currentRevision} + 1`,
-      updatedAt: new Date(),
+      ...bump(),
     })
     .where(and(eq(projects.id, projectId), eq(projects.currentRevision, expected)))
     .returning({ id: projects.id });
   return updated.length === 1;
 }
 
+/** Something on the project's page changed: readers' caches must not serve the old page. */
+const bump = () => ({ updatedAt: new Date(), changeSeq: sql`${projects.changeSeq} + 1` });
+
 export async function touchProject(db: DbOrTx, projectId: number) {
-  await db.update(projects).set({ updatedAt: new Date() }).where(eq(projects.id, projectId));
+  await db.update(projects).set(bump()).where(eq(projects.id, projectId));
 }
 
 export async function setStatus(db: DbOrTx, projectId: number, status: 'draft' | 'published') {
@@ -159,14 +162,14 @@ export async function setStatus(db: DbOrTx, projectId: number, status: 'draft' |
     .update(projects)
     .set({
       status,
-      updatedAt: new Date(),
+      ...bump(),
       ...(status === 'published' ? { publishedAt: sql`coalesce(${projects.publishedAt}, now())` } : {}),
     })
     .where(eq(projects.id, projectId));
 }
 
 export async function softDeleteProject(db: DbOrTx, projectId: number, by: number) {
-  await db.update(projects).set({ deletedAt: new Date(), deletedBy: by }).where(eq(projects.id, projectId));
+  await db.update(projects).set({ deletedAt: new Date(), deletedBy: by, ...bump() }).where(eq(projects.id, projectId));
 }
 
 export async function findDeletedProject(db: DbOrTx, slug: string): Promise<ProjectRow | undefined> {
@@ -178,7 +181,7 @@ export async function findDeletedProject(db: DbOrTx, slug: string): Promise<Proj
 }
 
 export async function undeleteProject(db: DbOrTx, projectId: number) {
-  await db.update(projects).set({ deletedAt: null, deletedBy: null, updatedAt: new Date() }).where(eq(projects.id, projectId));
+  await db.update(projects).set({ deletedAt: null, deletedBy: null, ...bump() }).where(eq(projects.id, projectId));
 }
 
 export async function listDeleted(db: DbOrTx) {

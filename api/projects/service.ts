@@ -175,11 +175,32 @@ export function viewerOf(role: ProjectRole | null) {
   return { canEdit: role !== null, canOwn: role === 'owner', canRestore: role !== null };
 }
 
+/**
+ * The page data of a project, cached per process under a key that changes with every change
+ * to the project: every write to a project, its documents, board revisions or members bumps
+ * `change_seq` (touchProject), and the key includes it, so a stale entry is never served after
+ * a change — also across API processes, which each read the row fresh. What the key cannot see
+ * (the owner renaming themselves) is bounded by a short lifetime.
+ */
+const DETAIL_TTL_MS = 30_000;
+const DETAIL_LIMIT = 500;
+const detailCache = new Map<string, { at: number; detail: Omit<ProjectDetail, 'viewer'> }>();
+
 export async function projectDetail(
   ctx: AppContext,
   project: ProjectRow,
   role: ProjectRole | null,
 ): Promise<ProjectDetail> {
+  const key = `${project.id}:${project.changeSeq}`;
+  const hit = detailCache.get(key);
+  if (hit && Date.now() - hit.at < DETAIL_TTL_MS) return { ...hit.detail, viewer: viewerOf(role) };
+  const detail = await loadProjectDetail(ctx, project);
+  detailCache.set(key, { at: Date.now(), detail });
+  if (detailCache.size > DETAIL_LIMIT) detailCache.delete(detailCache.keys().next().value as string);
+  return { ...detail, viewer: viewerOf(role) };
+}
+
+async function loadProjectDetail(ctx: AppContext, project: ProjectRow): Promise<Omit<ProjectDetail, 'viewer'>> {
   const [owner, members, boards, docs] = await Promise.all([
     q.findOwner(ctx.db, project.ownerId),
     q.listMembers(ctx.db, project.id),
@@ -205,7 +226,6 @@ export async function projectDetail(
     createdAt: project.createdAt.toISOString(),
     updatedAt: project.updatedAt.toISOString(),
     publishedAt: iso(project.publishedAt),
-    viewer: viewerOf(role),
   };
 }
 
@@ -333,7 +353,8 @@ export async function addEditor(ctx: AppContext, owner: AuthUser, project: Proje
   const current = await q.memberRole(ctx.db, project.id, member.id);
   if (current === 'owner') throw fail.conflict('The owner already has every right on the project.');
   await q.addMember(ctx.db, project.id, member.id, 'editor');
-  return projectDetail(ctx, project, 'owner');
+  await q.touchProject(ctx.db, project.id);
+  return projectDetail(ctx, await reload(ctx, project), 'owner');
 }
 
 export async function removeEditor(ctx: AppContext, owner: AuthUser, project: ProjectRow, handle: string): Promise<ProjectDetail> {
@@ -341,7 +362,8 @@ export async function removeEditor(ctx: AppContext, owner: AuthUser, project: Pr
   if (!member) throw fail.notFound(`Member @${handle}`);
   const removed = await q.removeMember(ctx.db, project.id, member.id);
   if (!removed) throw fail.notFound(`@${handle} as an editor of this project`);
-  return projectDetail(ctx, project, 'owner');
+  await q.touchProject(ctx.db, project.id);
+  return projectDetail(ctx, await reload(ctx, project), 'owner');
 }
 
 // --- board revisions -----------------------------------------------------------------------
@@ -372,6 +394,7 @@ export async function updateBoardRevision(
   try {
     const row = await q.updateBoardRevision(ctx.db, project.id, id, input);
     if (!row) throw fail.notFound('The board revision');
+    await q.touchProject(ctx.db, project.id);
     return toBoardRevision(row);
   } catch (error) {
     if (isUniqueViolation(error, 'board_revisions_label_key')) throw fail.conflict(`This project already has a board revision "${input.label}".`);
@@ -381,6 +404,7 @@ export async function updateBoardRevision(
 
 export async function removeBoardRevision(ctx: AppContext, project: ProjectRow, id: number): Promise<void> {
   if (!(await q.deleteBoardRevision(ctx.db, project.id, id))) throw fail.notFound('The board revision');
+  await q.touchProject(ctx.db, project.id);
 }
 
 // --- metadata history -----------------------------------------------------------------------

@@ -199,6 +199,25 @@ describe('board revisions', () => {
   });
 });
 
+describe('the project page', () => {
+  it('shows every change at once, although it is cached between changes', async () => {
+    const project = await create(maker, 'Cache Check');
+    await maker.agent.post(`/api/projects/${project.slug}/publish`).set(maker.headers).expect(200);
+    const board = await maker.agent.post(`/api/projects/${project.slug}/board-revisions`).set(maker.headers).send({ label: 'Rev A' }).expect(201);
+    const read = async () => (await t.agent().get(`/api/projects/${project.slug}`).expect(200)).body;
+    expect((await read()).boardRevisions.map((b: { label: string }) => b.label)).toEqual(['Rev A']);
+    await maker.agent.put(`/api/projects/${project.slug}/board-revisions/${board.body.id}`).set(maker.headers).send({ label: 'Rev A2' }).expect(200);
+    expect((await read()).boardRevisions.map((b: { label: string }) => b.label)).toEqual(['Rev A2']);
+    const section = (await read()).sections[0];
+    await maker.agent.put(`/api/projects/${project.slug}/documents/${section.id}`).set(maker.headers).send({ baseRevision: 1, title: section.title, body: 'Fresh **text**' }).expect(200);
+    expect((await read()).sections[0].html).toContain('<strong>text</strong>');
+    await maker.agent.post(`/api/projects/${project.slug}/editors`).set(maker.headers).send({ handle: 'juniper-okoye' }).expect(200);
+    expect((await read()).members.map((m: { handle: string }) => m.handle)).toContain('juniper-okoye');
+    await maker.agent.put(`/api/projects/${project.slug}/sections/order`).set(maker.headers).send({ ids: [...(await read()).sections.map((s: { id: number }) => s.id)].reverse() }).expect(200);
+    expect((await read()).sections.at(-1).id).toBe(section.id);
+  });
+});
+
 describe('deleting a project', () => {
   it('needs the owner and the typed address; then it is gone for everyone', async () => {
     const project = await create(maker, 'Doomed Build');

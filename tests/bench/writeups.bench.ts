@@ -4,7 +4,7 @@
  */
 import { loadConfig } from '../../api/config';
 import type { AppContext } from '../../api/context';
-import { saveDocument } from '../../api/documents/service';
+import { getDocument, saveDocument } from '../../api/documents/service';
 import { fakeGithubEndpoints } from '../../api/fakes/github';
 import { createLogger } from '../../api/log';
 import { createProject } from '../../api/projects/service';
@@ -51,13 +51,24 @@ export async function run(seconds: number): Promise<string[]> {
       const result = await saveDocument(ctx, user, project, 'owner', section.id, { title: 'Overview', body: `${base}\nsave ${revision}\n`, loggedOn: null, message: '' }, revision);
       revision = result.document.revision;
     }, 300, 30);
-    // And saves on a stale base that merge (the writer was one revision behind).
-    const mergeSamples = await timeRuns(async () => {
-      const lines = document(200, 7);
-      lines[0] = `## Part 0 edited ${revision}`;
-      const result = await saveDocument(ctx, user, project, 'owner', section.id, { title: 'Overview', body: `${lines.join('\n')}\nsave ${revision}\n`, loggedOn: null, message: '' }, revision - 1);
-      revision = result.document.revision;
-    }, 100, 10);
+    // Saves one revision behind: someone else changed the last line meanwhile, this writer the
+    // first line, so each is a three-way merge (only the merging save is timed).
+    let text = (await getDocument(ctx, project, 'owner', section.id)).body;
+    const mergeSamples: number[] = [];
+    for (let i = 0; i < 110; i++) {
+      const lines = text.split('\n');
+      const theirs = [...lines];
+      theirs[theirs.length - 2] = `tail ${i}`;
+      const other = await saveDocument(ctx, user, project, 'owner', section.id, { title: 'Overview', body: theirs.join('\n'), loggedOn: null, message: '' }, revision);
+      const ours = [...lines];
+      ours[0] = `## Part 0 edited ${i}`;
+      const started = process.hrtime.bigint();
+      const merged = await saveDocument(ctx, user, project, 'owner', section.id, { title: 'Overview', body: ours.join('\n'), loggedOn: null, message: '' }, revision);
+      if (i >= 10) mergeSamples.push(Number(process.hrtime.bigint() - started) / 1e6);
+      if (merged.outcome !== 'merged' || other.outcome !== 'saved') throw new Error(`expected a merge, got ${merged.outcome}`);
+      revision = merged.document.revision;
+      text = merged.document.body;
+    }
     out.push(
       'Saving a revision of a 200-line section through the service (transaction with row lock, conditional update and revision insert; real PostgreSQL, no HTTP):',
       '',
