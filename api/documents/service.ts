@@ -12,10 +12,9 @@ import type { Tx } from '../../db/client';
 import type { AppContext } from '../context';
 import { fail } from '../http/errors';
 import type { AuthUser } from '../http/routes';
-import { renderCached } from '../markdown/cache';
 import type { ProjectRow } from '../projects/queries';
 import * as projectQueries from '../projects/queries';
-import { projectDetail, viewerOf } from '../projects/service';
+import { projectDetail, toDocumentSummary, viewerOf } from '../projects/service';
 import * as revisionQueries from '../revisions/queries';
 import { toRevisionDetail, toRevisionSummary } from '../revisions/present';
 import { saveVersioned, type VersionedStore } from '../revisions/versioned';
@@ -26,17 +25,8 @@ export function toDocumentDetail(
   doc: q.DocumentRow,
   role: ProjectRole | null,
 ): DocumentDetail {
-  const rendered = renderCached(`doc:${doc.id}:${doc.currentRevision}`, doc.body, `d${doc.id}-`);
   return {
-    id: doc.id,
-    kind: doc.kind,
-    title: doc.title,
-    position: doc.position,
-    loggedOn: doc.loggedOn,
-    revision: doc.currentRevision,
-    html: rendered.html,
-    toc: rendered.toc,
-    updatedAt: doc.updatedAt.toISOString(),
+    ...toDocumentSummary(doc),
     body: doc.body,
     projectSlug: project.slug,
     projectTitle: project.title,
