@@ -289,8 +289,12 @@ export const errata = pgTable(
     workaround: text('workaround').notNull().default(''),
     fix: text('fix').notNull().default(''),
     fixedInId: integer('fixed_in_id').references(() => boardRevisions.id, { onDelete: 'set null' }),
+    /** Ids of the board revisions the defect affects (removed boards are taken out of it). */
+    affected: integer('affected').array().notNull().default(sql`'{}'::integer[]`),
     /** Where the defect sits: reference designators, part names, pin labels. */
-    location: jsonb('location').notNull().default(sql`'{}'::jsonb`),
+    refdes: text('refdes').array().notNull().default(sql`'{}'::text[]`),
+    parts: text('parts').array().notNull().default(sql`'{}'::text[]`),
+    pins: text('pins').array().notNull().default(sql`'{}'::text[]`),
     reportedById: integer('reported_by_id').references(() => users.id),
     reportedByText: text('reported_by_text'),
     currentRevision: integer('current_revision').notNull().default(1),
@@ -300,20 +304,10 @@ export const errata = pgTable(
     createdAt: createdAt(),
     updatedAt: updatedAt(),
   },
-  (t) => [uniqueIndex('errata_project_number_key').on(t.projectId, t.number)],
-);
-
-export const erratumBoardRevisions = pgTable(
-  'erratum_board_revisions',
-  {
-    erratumId: integer('erratum_id')
-      .notNull()
-      .references(() => errata.id, { onDelete: 'cascade' }),
-    boardRevisionId: integer('board_revision_id')
-      .notNull()
-      .references(() => boardRevisions.id, { onDelete: 'cascade' }),
-  },
-  (t) => [primaryKey({ columns: [t.erratumId, t.boardRevisionId] })],
+  (t) => [
+    uniqueIndex('errata_project_number_key').on(t.projectId, t.number),
+    index('errata_affected_idx').using('gin', t.affected),
+  ],
 );
 
 export const lessons = pgTable(
@@ -428,7 +422,8 @@ export const proposals = pgTable(
     index('proposals_author_idx').on(t.authorId),
     check(
       'proposals_target_check',
-      sql`(${t.kind} = 'new_erratum' AND ${t.erratumId} IS NULL AND ${t.documentId} IS NULL)
+      // A new erratum has no target until accepted; then erratum_id points at what it became.
+      sql`(${t.kind} = 'new_erratum' AND ${t.documentId} IS NULL)
         OR (${t.kind} = 'erratum_edit' AND ${t.erratumId} IS NOT NULL)
         OR (${t.kind} = 'document_edit' AND ${t.documentId} IS NOT NULL)`,
     ),
