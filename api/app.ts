@@ -12,12 +12,18 @@ import { createPassport } from './auth/passport';
 import { absoluteLifetime, sessionMiddleware } from './auth/session';
 import type { AppContext } from './context';
 import { registerHealthRoutes } from './health/router';
+import { registerMailRoutes } from './mail/router';
 import { ApiRoutes } from './http/routes';
 import { apiNotFound, errorHandler } from './middleware/errors';
 import { registerOpenApiRoute } from './openapi/router';
 import { registerUserRoutes } from './users/router';
 import { registerProjectRoutes } from './projects/router';
 import { registerDocumentRoutes } from './documents/router';
+import { registerErrataRoutes } from './errata/router';
+import { registerLessonRoutes } from './lessons/router';
+import { registerNotificationRoutes } from './notifications/router';
+import { registerProposalRoutes } from './proposals/router';
+import { registerTagRoutes } from './tags/router';
 
 export interface BuiltApp {
   app: Express;
@@ -37,8 +43,14 @@ function registerRoutes(routes: ApiRoutes, ctx: AppContext, passport: ReturnType
   registerOpenApiRoute(routes, ctx);
   registerAuthRoutes(routes, ctx, passport);
   registerUserRoutes(routes, ctx);
+  registerMailRoutes(routes, ctx);
   registerProjectRoutes(routes, ctx);
   registerDocumentRoutes(routes, ctx);
+  registerErrataRoutes(routes, ctx);
+  registerLessonRoutes(routes, ctx);
+  registerTagRoutes(routes, ctx);
+  registerProposalRoutes(routes, ctx);
+  registerNotificationRoutes(routes, ctx);
 }
 
 export function createApp(ctx: AppContext, options: AppOptions = {}): BuiltApp {

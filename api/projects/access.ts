@@ -7,7 +7,8 @@ import { fail } from '../http/errors';
 import type { AccessRule, RequestState } from '../http/routes';
 import { findProjectBySlug, memberRole, type ProjectRow } from './queries';
 
-export type ProjectNeed = 'read' | 'edit' | 'own';
+/** read: anyone who can see it; participate: signed in and can see it (comment, propose, follow). */
+export type ProjectNeed = 'read' | 'participate' | 'edit' | 'own';
 
 export interface ProjectLocals {
   project: ProjectRow;
@@ -21,7 +22,12 @@ export function canRead(project: ProjectRow, role: ProjectRole | null, siteRole:
 
 export function projectAccess(need: ProjectNeed): AccessRule {
   return {
-    name: need === 'read' ? 'project reader' : need === 'edit' ? 'project editor or owner' : 'project owner',
+    name: {
+      read: 'project reader',
+      participate: 'signed-in project reader',
+      edit: 'project editor or owner',
+      own: 'project owner',
+    }[need],
     allowsAnonymous: need === 'read',
     async check(state: RequestState) {
       if (need !== 'read' && !state.user) throw fail.unauthenticated();

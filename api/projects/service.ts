@@ -29,6 +29,7 @@ import { findUserByHandle } from '../users/queries';
 import * as q from './queries';
 import type { ProjectRow } from './queries';
 import { insertDocumentWithRevision } from '../documents/queries';
+import { errataNamingBoard } from '../errata/queries';
 
 export const PAGE_SIZE = 24;
 /** Deleted projects can be restored by an admin for this long, then they are purged. */
@@ -403,6 +404,11 @@ export async function updateBoardRevision(
 }
 
 export async function removeBoardRevision(ctx: AppContext, project: ProjectRow, id: number): Promise<void> {
+  // Errata name board revisions in their history; removing one under them would rewrite it.
+  const naming = await errataNamingBoard(ctx.db, project.id, id);
+  if (naming.length) {
+    throw fail.conflict(`This board revision is named in ${naming.map((n) => `E${n}`).join(', ')}. Change those errata first.`);
+  }
   if (!(await q.deleteBoardRevision(ctx.db, project.id, id))) throw fail.notFound('The board revision');
   await q.touchProject(ctx.db, project.id);
 }

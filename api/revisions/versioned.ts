@@ -17,7 +17,7 @@ import { mergeFields, type FieldConflict } from '../../shared/merge';
 import type { FieldValue } from '../../shared/diff';
 import type { EditConflict, SaveOutcome } from '../../shared/contracts/projects';
 import type { RevisionSubject } from '../../shared/domain';
-import type { Db, Tx } from '../../db/client';
+import type { DbOrTx, Tx } from '../../db/client';
 import { AppError } from '../http/errors';
 import { findRevision, insertRevision } from './queries';
 
@@ -67,8 +67,9 @@ export interface SaveResult {
 
 const MAX_ATTEMPTS = 8;
 
+/** `db` may be a transaction: the save then runs in a savepoint inside it. */
 export async function saveVersioned<F extends Fields>(
-  db: Db,
+  db: DbOrTx,
   store: VersionedStore<F>,
   request: SaveRequest<F>,
   afterWrite?: (tx: Tx, revision: number) => Promise<void>,

@@ -1,0 +1,87 @@
+/**
+ * Discussion threads on proposals and errata: Markdown comments rendered with the same rules as
+ * write-ups. Posting notifies everyone already in the thread (and the item's author).
+ */
+import { and, asc, eq, isNull } from 'drizzle-orm';
+import type { Comment, CommentList } from '../../shared/contracts/errata';
+import type { DbOrTx, Tx } from '../../db/client';
+import { comments, users } from '../../db/schema';
+import type { AppContext } from '../context';
+import type { AuthUser } from '../http/routes';
+import { renderCached } from '../markdown/cache';
+import { plainTextOf } from '../markdown/render';
+
+export type ThreadTarget = { proposalId: number } | { erratumId: number };
+
+const whereTarget = (target: ThreadTarget) =>
+  'proposalId' in target ? eq(comments.proposalId, target.proposalId) : eq(comments.erratumId, target.erratumId);
+
+function toComment(row: {
+  id: number;
+  body: string;
+  createdAt: Date;
+  authorId: number;
+  handle: string;
+  displayName: string;
+  avatarUrl: string | null;
+}): Comment {
+  return {
+    id: row.id,
+    author: { id: row.authorId, handle: row.handle, displayName: row.displayName, avatarUrl: row.avatarUrl },
+    body: row.body,
+    html: renderCached(`comment:${row.id}`, row.body, `c${row.id}-`).html,
+    createdAt: row.createdAt.toISOString(),
+  };
+}
+
+const columns = {
+  id: comments.id,
+  body: comments.body,
+  createdAt: comments.createdAt,
+  authorId: users.id,
+  handle: users.handle,
+  displayName: users.displayName,
+  avatarUrl: users.avatarUrl,
+};
+
+export async function listComments(ctx: AppContext, target: ThreadTarget, user: AuthUser | null): Promise<CommentList> {
+  const rows = await ctx.db
+    .select(columns)
+    .from(comments)
+    .innerJoin(users, eq(users.id, comments.authorId))
+    .where(and(whereTarget(target), isNull(comments.hiddenAt)))
+    .orderBy(asc(comments.createdAt), asc(comments.id));
+  return { items: rows.map(toComment), canComment: user !== null };
+}
+
+/** Everyone who has commented in the thread (for notifications). */
+export async function threadParticipants(db: DbOrTx, target: ThreadTarget): Promise<number[]> {
+  const rows = await db.selectDistinct({ id: comments.authorId }).from(comments).where(whereTarget(target));
+  return rows.map((r) => r.id);
+}
+
+export async function insertComment(
+  tx: Tx,
+  target: ThreadTarget,
+  projectId: number,
+  user: AuthUser,
+  body: string,
+): Promise<Comment> {
+  const [row] = await tx
+    .insert(comments)
+    .values({ projectId, authorId: user.id, body, ...target })
+    .returning({ id: comments.id, body: comments.body, createdAt: comments.createdAt });
+  return toComment({
+    ...row!,
+    authorId: user.id,
+    handle: user.handle,
+    displayName: user.displayName,
+    avatarUrl: user.avatarUrl,
+  });
+}
+
+/** A short plain-text excerpt of Markdown for notifications (markup removed by the renderer). */
+export function excerptOf(markdown: string, max = 280): string {
+  const text = plainTextOf(markdown).replace(/\s+/g, ' ').trim();
+  return text.length > max ? `${text.slice(0, max - 1)}…` : text;
+}
