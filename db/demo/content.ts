@@ -10,6 +10,7 @@ import type { Tx } from '../client';
 import { boardRevisions, documents, projectMembers, projects } from '../schema';
 import type { DemoDocument, DemoProject } from './types';
 import { demoWriteUps } from './write-ups';
+import { seedDemoContributions } from './contributions-seed';
 
 const DAY = 86_400_000;
 /** The demo's "today": log-entry dates are fixed, so revision times count back from here. */
@@ -27,6 +28,7 @@ export async function seedDemoContent(
   };
   const at = (daysAgo: number) => new Date(now.getTime() - daysAgo * DAY);
   for (const demo of demoWriteUps) await seedProject(tx, demo, id, at);
+  await seedDemoContributions(tx, id, at);
 }
 
 function metaFields(meta: DemoProject['meta'][number]): ProjectMetaFields {

@@ -43,6 +43,30 @@ describe('the demo data', () => {
     expect(unchanged.body.outcome).toBe('unchanged');
   });
 
+  it('has errata across two board revisions, with workarounds, credit and discussion', async () => {
+    const list = (await t.agent().get('/api/projects/greenhouse-vent-controller/errata').expect(200)).body;
+    expect(list.boards.map((b: { label: string }) => b.label)).toEqual(['Rev A', 'Rev B']);
+    expect(list.items.length).toBeGreaterThanOrEqual(4);
+    const revA = list.boards[0].id as number;
+    const onRevA = list.items.filter((e: { affected: { id: number }[] }) => e.affected.some((a) => a.id === revA));
+    expect(onRevA.length).toBeGreaterThanOrEqual(2);
+    expect(new Set(list.items.map((e: { severity: string }) => e.severity)).size).toBeGreaterThanOrEqual(3);
+    expect(list.items.some((e: { reportedBy: { handle: string } | null }) => e.reportedBy?.handle === 'bram-tolliver')).toBe(true);
+    expect(list.items.some((e: { commentCount: number }) => e.commentCount > 0)).toBe(true);
+    const history = (await t.agent().get(`/api/projects/greenhouse-vent-controller/errata/${list.items[0].code}/revisions`)).body.items;
+    expect(history.length).toBeGreaterThanOrEqual(1);
+  });
+
+  it('has open and decided proposals, lessons with tags, and pending tags to curate', async () => {
+    const proposals = (await t.agent().get('/api/projects/greenhouse-vent-controller/proposals').expect(200)).body.items;
+    const states = new Set(proposals.map((p: { status: string }) => p.status));
+    expect(states).toEqual(new Set(['open', 'accepted', 'declined', 'withdrawn']));
+    const lessons = (await t.agent().get('/api/projects/greenhouse-vent-controller/lessons').expect(200)).body.items;
+    expect(lessons.length).toBeGreaterThanOrEqual(3);
+    const pending = await t.ctx.db.execute(sql`SELECT count(*)::int AS n FROM tags WHERE state = 'pending'`);
+    expect(pending.rows[0]).toEqual({ n: 2 });
+  });
+
   it('marks the mains-powered build with its hazard', async () => {
     const detail = (await t.agent().get('/api/projects/greenhouse-vent-controller')).body;
     expect(detail.hazards).toContain('mains');
