@@ -24,6 +24,29 @@ export interface RouteNamedMap {
   >;
   'admin-users': RouteRecordInfo<'admin-users', '/admin/users', NoParams, NoParams>;
   'admin-deleted-projects': RouteRecordInfo<'admin-deleted-projects', '/admin/projects', NoParams, NoParams>;
+  'proposal-new-erratum': RouteRecordInfo<'proposal-new-erratum', '/projects/:slug/propose/erratum', Slug, Slug>;
+  'proposal-edit-erratum': RouteRecordInfo<
+    'proposal-edit-erratum',
+    '/projects/:slug/errata/:code/propose',
+    { slug: string; code: string },
+    { slug: string; code: string }
+  >;
+  'proposal-edit-document': RouteRecordInfo<
+    'proposal-edit-document',
+    '/projects/:slug/documents/:documentId/propose',
+    SlugDoc,
+    SlugDocOut
+  >;
+  proposal: RouteRecordInfo<
+    'proposal',
+    '/proposals/:proposalId',
+    { proposalId: string | number },
+    { proposalId: string }
+  >;
+  'review-queue': RouteRecordInfo<'review-queue', '/me/review', NoParams, NoParams>;
+  'my-proposals': RouteRecordInfo<'my-proposals', '/me/proposals', NoParams, NoParams>;
+  notifications: RouteRecordInfo<'notifications', '/me/notifications', NoParams, NoParams>;
+  'notification-settings': RouteRecordInfo<'notification-settings', '/me/settings/notifications', NoParams, NoParams>;
   'not-found': RouteRecordInfo<
     'not-found',
     '/:pathMatch(.*)*',
