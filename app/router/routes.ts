@@ -56,6 +56,32 @@ export const routes = [
     meta: { title: 'History' },
   },
   {
+    path: '/projects/:slug/errata',
+    name: 'project-errata',
+    component: () => import('@/pages/ProjectErrataPage.vue'),
+    meta: { title: 'Errata' },
+  },
+  // Before the `:code` routes, or "new" would be read as an erratum code.
+  {
+    path: '/projects/:slug/errata/new',
+    name: 'erratum-new',
+    component: () => import('@/pages/ErratumEditPage.vue'),
+    meta: { requires: 'signed-in', title: 'New erratum' },
+  },
+  { path: '/projects/:slug/errata/:code', name: 'erratum', component: () => import('@/pages/ErratumPage.vue') },
+  {
+    path: '/projects/:slug/errata/:code/edit',
+    name: 'erratum-edit',
+    component: () => import('@/pages/ErratumEditPage.vue'),
+    meta: { requires: 'signed-in', title: 'Editing an erratum' },
+  },
+  {
+    path: '/projects/:slug/errata/:code/history',
+    name: 'erratum-history',
+    component: () => import('@/pages/ErratumHistoryPage.vue'),
+    meta: { title: 'Erratum history' },
+  },
+  {
     path: '/admin/users',
     name: 'admin-users',
     component: () => import('@/pages/AdminUsersPage.vue'),

@@ -4,6 +4,8 @@ type NoParams = Record<never, never>;
 type Slug = { slug: string };
 type SlugDoc = { slug: string; documentId: string | number };
 type SlugDocOut = { slug: string; documentId: string };
+/** An erratum by project and code (`E3`). */
+type SlugCode = { slug: string; code: string };
 
 /** Every named route with its params; keep in step with routes.ts. */
 export interface RouteNamedMap {
@@ -22,6 +24,11 @@ export interface RouteNamedMap {
     SlugDoc,
     SlugDocOut
   >;
+  'project-errata': RouteRecordInfo<'project-errata', '/projects/:slug/errata', Slug, Slug>;
+  'erratum-new': RouteRecordInfo<'erratum-new', '/projects/:slug/errata/new', Slug, Slug>;
+  erratum: RouteRecordInfo<'erratum', '/projects/:slug/errata/:code', SlugCode, SlugCode>;
+  'erratum-edit': RouteRecordInfo<'erratum-edit', '/projects/:slug/errata/:code/edit', SlugCode, SlugCode>;
+  'erratum-history': RouteRecordInfo<'erratum-history', '/projects/:slug/errata/:code/history', SlugCode, SlugCode>;
   'admin-users': RouteRecordInfo<'admin-users', '/admin/users', NoParams, NoParams>;
   'admin-deleted-projects': RouteRecordInfo<'admin-deleted-projects', '/admin/projects', NoParams, NoParams>;
   'proposal-new-erratum': RouteRecordInfo<'proposal-new-erratum', '/projects/:slug/propose/erratum', Slug, Slug>;
