@@ -4,7 +4,10 @@
  */
 import type { Database, Db } from '../db/client';
 import type { Config } from './config';
+import type { Outbox } from './fakes/smtp';
+import type { Jobs } from './jobs/queue';
 import type { Logger } from './log';
+import type { Mailer } from './mail/mailer';
 
 export interface AppContext {
   config: Config;
@@ -13,6 +16,12 @@ export interface AppContext {
   log: Logger;
   /** Where the GitHub OAuth endpoints are: github.com, or the local fake provider. */
   github: GithubEndpoints;
+  /** The job queue: enqueue work (e-mail) that must not slow or fail a request. */
+  jobs: Jobs;
+  /** Outgoing mail; only jobs send. */
+  mail: Mailer;
+  /** The local mail capture, when it stands in for SMTP (development and tests). */
+  outbox?: Outbox;
 }
 
 export interface GithubEndpoints {

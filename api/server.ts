@@ -11,10 +11,13 @@ import { openEmbeddedOrConfigured } from '../db/local';
 import { migrateDatabase } from '../db/migrate';
 import { seedDemoIfEmpty } from '../db/seed';
 import { createApp } from './app';
-import type { Config } from './config';
+import { repoRoot, type Config } from './config';
 import { realGithub, type AppContext } from './context';
 import { fakeGithubEndpoints, startFakeGithub } from './fakes/github';
+import { startFakeSmtp, type Outbox } from './fakes/smtp';
+import { createJobs, type JobsOptions } from './jobs/queue';
 import { createLogger, type Logger } from './log';
+import { createMailer } from './mail/mailer';
 import { startMaintenance } from './maintenance';
 
 export const FAKE_CLIENT = { id: 'reworkbook-local', secret: 'reworkbook-local-secret' };
@@ -34,6 +37,10 @@ export interface StartOptions {
   databaseUrl?: string;
   /** Keep fake accounts created on the provider page between runs (development). */
   fakeAccountsFile?: string;
+  /** Job queue options; workers run in this process by default. */
+  jobs?: JobsOptions;
+  /** Where the local mail capture keeps `.eml` files (default `.data/outbox` in development, none otherwise). */
+  outboxDir?: string;
 }
 
 export async function startServer(config: Config, options: StartOptions = {}): Promise<RunningServer> {
@@ -77,7 +84,21 @@ export async function startServer(config: Config, options: StartOptions = {}): P
       log.info(`Local sign-in provider (stands in for GitHub) at ${fake.url}`);
     }
 
-    const ctx: AppContext = { config, database, db: database.db, log, github };
+    let outbox: Outbox | undefined;
+    if (config.useFakeSmtp) {
+      const outboxDir = options.outboxDir ?? (config.NODE_ENV === 'development' ? path.join(repoRoot, '.data', 'outbox') : undefined);
+      outbox = await startFakeSmtp({ port: config.FAKE_SMTP_PORT, ...(outboxDir ? { dir: outboxDir } : {}) });
+      const capture = outbox;
+      stops.push(() => capture.close());
+      if (config.production) log.warn(`SMTP_URL is not set: e-mail is only captured locally (${outbox.url}) and never delivered.`);
+      else log.info(`Local mail capture at ${outbox.url}; see /dev/outbox`);
+    }
+    const base = { config, database, db: database.db, log, github, mail: createMailer(config, outbox?.url), ...(outbox ? { outbox } : {}) };
+    const jobs = createJobs(base, options.jobs);
+    await jobs.start();
+    // Stops before the mail capture and the database (stops run in reverse): running jobs finish first.
+    stops.push(() => jobs.stop());
+    const ctx: AppContext = { ...base, jobs };
     stops.push(startMaintenance(ctx));
     const { app } = createApp(ctx, options.clientDir ? { clientDir: options.clientDir } : {});
     const server = await new Promise<Server>((resolve, reject) => {

@@ -23,6 +23,7 @@ export function registerUserRoutes(routes: ApiRoutes, ctx: AppContext) {
         user: user ? service.toCurrentUser(user) : null,
         csrfToken: user ? (req.session.csrfToken ?? null) : null,
         signInProvider: ctx.github.fake ? 'fake-github' : 'github',
+        devOutbox: ctx.outbox !== undefined && !ctx.config.production,
       };
     },
   );

@@ -11,6 +11,8 @@ type SlugCode = { slug: string; code: string };
 export interface RouteNamedMap {
   home: RouteRecordInfo<'home', '/', NoParams, NoParams>;
   'sign-in': RouteRecordInfo<'sign-in', '/sign-in', NoParams, NoParams>;
+  unsubscribe: RouteRecordInfo<'unsubscribe', '/unsubscribe', NoParams, NoParams>;
+  'dev-outbox': RouteRecordInfo<'dev-outbox', '/dev/outbox', NoParams, NoParams>;
   'my-projects': RouteRecordInfo<'my-projects', '/me/projects', NoParams, NoParams>;
   'project-new': RouteRecordInfo<'project-new', '/new', NoParams, NoParams>;
   project: RouteRecordInfo<'project', '/projects/:slug', Slug, Slug>;

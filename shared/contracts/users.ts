@@ -26,6 +26,8 @@ export const meResponseSchema = z
     /** Send back in the X-CSRF-Token header on every unsafe request. Null when signed out. */
     csrfToken: z.string().nullable(),
     signInProvider: z.enum(['github', 'fake-github']),
+    /** True on a developer's machine where the local mail capture and its outbox page run. */
+    devOutbox: z.boolean(),
   })
   .meta({ id: 'Me' });
 export type MeResponse = z.infer<typeof meResponseSchema>;

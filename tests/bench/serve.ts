@@ -7,7 +7,9 @@ import { createApp } from '../../api/app';
 import { loadConfig } from '../../api/config';
 import type { AppContext } from '../../api/context';
 import { fakeGithubEndpoints } from '../../api/fakes/github';
+import { createJobs } from '../../api/jobs/queue';
 import { createLogger } from '../../api/log';
+import { createMailer } from '../../api/mail/mailer';
 import { createDatabase } from '../../db/client';
 import { listen } from './harness';
 
@@ -18,13 +20,16 @@ bare.get('/json', (_req, res) => {
 });
 const database = createDatabase(databaseUrl, { max: 10, log: () => {} });
 const config = loadConfig({ NODE_ENV: 'production', SESSION_SECRET: 'b'.repeat(40), APP_ORIGIN: 'http://127.0.0.1', LOG_LEVEL: 'silent' });
-const ctx: AppContext = {
+const base = {
   config,
   database,
   db: database.db,
   log: createLogger('silent'),
   github: fakeGithubEndpoints('http://127.0.0.1:9', 'bench', 'bench'),
+  mail: createMailer(config),
 };
+// The benchmarks send no mail: the queue is never started, and enqueueing would throw.
+const ctx: AppContext = { ...base, jobs: createJobs(base, { workers: false }) };
 const a = await listen(bare);
 const b = await listen(createApp(ctx).app);
 console.log(JSON.stringify({ bare: a.url, app: b.url }));

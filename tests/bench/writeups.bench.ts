@@ -6,7 +6,9 @@ import { loadConfig } from '../../api/config';
 import type { AppContext } from '../../api/context';
 import { getDocument, saveDocument } from '../../api/documents/service';
 import { fakeGithubEndpoints } from '../../api/fakes/github';
+import { createJobs } from '../../api/jobs/queue';
 import { createLogger } from '../../api/log';
+import { createMailer } from '../../api/mail/mailer';
 import { createProject } from '../../api/projects/service';
 import { findProjectBySlug } from '../../api/projects/queries';
 import { toAuthUser } from '../../api/users/service';
@@ -31,13 +33,17 @@ function document(lines: number, seed: number): string[] {
 export async function run(seconds: number): Promise<string[]> {
   const out: string[] = [];
   const database = await startBenchDatabase();
-  const ctx: AppContext = {
-    config: loadConfig({ NODE_ENV: 'test', LOG_LEVEL: 'silent' }),
+  const config = loadConfig({ NODE_ENV: 'test', LOG_LEVEL: 'silent' });
+  const base = {
+    config,
     database,
     db: database.db,
     log: createLogger('silent'),
     github: fakeGithubEndpoints('http://127.0.0.1:9', 'bench', 'bench'),
+    mail: createMailer(config),
   };
+  // The benchmarks send no mail: the queue is never started, and enqueueing would throw.
+  const ctx: AppContext = { ...base, jobs: createJobs(base, { workers: false }) };
   {
     // --- saving a revision (service level: lock, merge check, conditional update, insert) ---
     const row = await findUserByHandle(ctx.db, 'ilse-marrow');

@@ -9,7 +9,10 @@ import { createApp } from '../../api/app';
 import { loadConfig, type Config } from '../../api/config';
 import type { AppContext } from '../../api/context';
 import { fakeGithubEndpoints, startFakeGithub, type RunningFakeGithub } from '../../api/fakes/github';
+import { startFakeSmtp, type Outbox } from '../../api/fakes/smtp';
+import { createJobs } from '../../api/jobs/queue';
 import { createLogger } from '../../api/log';
+import { createMailer } from '../../api/mail/mailer';
 import { FAKE_CLIENT } from '../../api/server';
 import { seedDemoIfEmpty } from '../../db/seed';
 import { createTestDatabase, type TestDatabase } from './db';
@@ -22,6 +25,8 @@ export interface TestApp {
   ctx: AppContext;
   database: TestDatabase;
   fake: RunningFakeGithub;
+  /** The local mail capture every test app sends to (also `ctx.outbox`). */
+  outbox: Outbox;
   config: Config;
   /** A fresh cookie-keeping client, signed out. */
   agent(): TestAgent;
@@ -41,7 +46,13 @@ export interface SignedInAgent {
 }
 
 export async function createTestApp(
-  options: { env?: Record<string, string>; seed?: boolean; database?: TestDatabase } = {},
+  options: {
+    env?: Record<string, string>;
+    seed?: boolean;
+    database?: TestDatabase;
+    /** Run the job handlers in this app (delivery tests); off by default: jobs are only stored. */
+    workers?: boolean;
+  } = {},
 ): Promise<TestApp> {
   const database = options.database ?? (await createTestDatabase());
   const config = loadConfig({
@@ -58,13 +69,25 @@ export async function createTestApp(
     clientSecret: FAKE_CLIENT.secret,
     allowedRedirectOrigins: [config.appOrigin],
   });
-  const ctx: AppContext = {
+  const outbox = await startFakeSmtp({ port: 0 });
+  const base = {
     config,
     database,
     db: database.db,
     log: createLogger(config.LOG_LEVEL),
     github: fakeGithubEndpoints(fake.url, FAKE_CLIENT.id, FAKE_CLIENT.secret),
+    mail: createMailer(config, outbox.url),
+    outbox,
   };
+  // Schedules stay off (tests call the handlers); retries come quickly so outages are short.
+  const jobs = createJobs(base, {
+    workers: options.workers ?? false,
+    schedule: false,
+    retryDelaySeconds: 1,
+    pollingIntervalSeconds: 0.5,
+  });
+  await jobs.start();
+  const ctx: AppContext = { ...base, jobs };
   const { app, routes } = createApp(ctx);
   const agent = () => request.agent(app);
 
@@ -102,10 +125,13 @@ export async function createTestApp(
     ctx,
     database,
     fake,
+    outbox,
     config,
     agent,
     signIn,
     async close() {
+      await jobs.stop();
+      await outbox.close();
       await fake.close();
       if (!options.database) await database.drop();
     },

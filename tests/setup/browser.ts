@@ -1,6 +1,6 @@
 /**
  * Browser tests (playwright gives every launch a fresh, empty profile): the whole product (real server, real database, built client, fake
- * provider) driven by Debian's Chromium through playwright-core. A console error or an
+ * provider, job workers and the local mail capture) driven by Debian's Chromium through playwright-core. A console error or an
  * uncaught page error fails the test.
  */
 import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
@@ -32,6 +32,7 @@ export async function startProduct(env: Record<string, string> = {}): Promise<Pr
     PORT: String(port),
     APP_ORIGIN: origin,
     FAKE_GITHUB_PORT: '0',
+    FAKE_SMTP_PORT: '0',
     LOG_LEVEL: 'warn',
     ...env,
   });

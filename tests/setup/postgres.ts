@@ -1,7 +1,7 @@
 /**
  * Global setup for suites that need PostgreSQL: a throwaway cluster in a temporary folder on
- * a free port (never the development database), with a migrated template database that
- * every test file clones (tests/setup/db.ts).
+ * a free port (never the development database), with a migrated template database (with the
+ * job queue's schema installed) that every test file clones (tests/setup/db.ts).
  */
 import fs from 'node:fs';
 import net from 'node:net';
@@ -9,6 +9,7 @@ import os from 'node:os';
 import path from 'node:path';
 import pg from 'pg';
 import type { TestProject } from 'vitest/node';
+import { installJobSchema } from '../../api/jobs/queue';
 import { startCluster, type RunningCluster } from '../../db/cluster';
 import { migrateDatabase } from '../../db/migrate';
 
@@ -46,6 +47,8 @@ export async function setup(project: TestProject) {
   await admin.end();
   const templateUrl = cluster.superuserUrl.replace(/\/postgres$/, `/${TEMPLATE_DB}`);
   await migrateDatabase(templateUrl);
+  // The job queue's schema too, once: every clone then starts its queue without installing it.
+  await installJobSchema(templateUrl);
   project.provide('pg', { superuserUrl: cluster.superuserUrl, template: TEMPLATE_DB, dataDir, port });
 }
 
