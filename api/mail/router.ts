@@ -7,7 +7,7 @@ import {
   outboxParamsSchema,
   unsubscribeQuerySchema,
   unsubscribeStateSchema,
-} from './contracts';
+} from '../../shared/contracts/mail';
 import * as service from './service';
 
 export function registerMailRoutes(routes: ApiRoutes, ctx: AppContext) {

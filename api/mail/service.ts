@@ -7,7 +7,7 @@ import { notificationKinds, type NotificationKind } from '../../shared/contracts
 import type { AppContext } from '../context';
 import type { CapturedMessage, Outbox } from '../fakes/smtp';
 import { fail } from '../http/errors';
-import type { UnsubscribeState } from './contracts';
+import type { UnsubscribeState } from '../../shared/contracts/mail';
 import { modesOf, setModes, userExists } from './queries';
 import { verifyUnsubscribeToken, type UnsubscribeScope } from './unsubscribe';
 

@@ -1,34 +1,10 @@
-/**
- * The unsubscribe page and the development outbox, over the one HTTP client. The shapes
- * mirror the server's contracts in api/mail/contracts.ts.
- */
-import type { NotificationKind } from '@shared/contracts/errata';
-import type { MeResponse } from '@shared/contracts/users';
-import type { NotificationMode } from '@shared/domain';
-import { ref, type Ref } from 'vue';
+/** The unsubscribe page and the development outbox, over the one HTTP client. */
+import type { OutboxMessage, OutboxSummary, UnsubscribeState } from '@shared/contracts/mail';
+import { computed, type Ref } from 'vue';
+import { useSessionStore } from '@/stores/session';
 import { http } from './http';
 
-/** One kind, or every kind delivered in the daily digest. */
-export type UnsubscribeScope = NotificationKind | 'daily_digest';
-
-export interface UnsubscribeState {
-  kind: UnsubscribeScope;
-  mode: NotificationMode;
-}
-
-export interface OutboxSummary {
-  id: string;
-  to: string;
-  subject: string;
-  receivedAt: string;
-}
-
-export interface OutboxMessage extends OutboxSummary {
-  from: string;
-  headers: { name: string; value: string }[];
-  text: string;
-  html: string | null;
-}
+export type { OutboxMessage, OutboxSummary, UnsubscribeState };
 
 export function useUnsubscribe() {
   return {
@@ -45,20 +21,8 @@ export function useDevOutbox() {
   };
 }
 
-const devOutbox = ref(false);
-let asked = false;
-
-/**
- * Whether this server runs the development outbox (from `GET /api/me`), asked once per page
- * load. Only decides whether a menu shows a link: if the question fails, the link stays hidden.
- */
+/** Whether this server runs the development outbox (from the session's `GET /api/me`). */
 export function useDevOutboxAvailable(): Readonly<Ref<boolean>> {
-  if (!asked) {
-    asked = true;
-    http.get<MeResponse>('/me').then(
-      (me) => (devOutbox.value = me.devOutbox),
-      () => (devOutbox.value = false),
-    );
-  }
-  return devOutbox;
+  const session = useSessionStore();
+  return computed(() => session.devOutbox);
 }

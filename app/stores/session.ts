@@ -13,6 +13,8 @@ export const useSessionStore = defineStore('session', () => {
   const csrfToken = ref<string | null>(null);
   const provider = ref<MeResponse['signInProvider']>('github');
   const loaded = ref(false);
+  /** The development outbox exists on this server (local SMTP capture). */
+  const devOutbox = ref(false);
   let loading: Promise<void> | null = null;
 
   async function refresh() {
@@ -20,6 +22,7 @@ export const useSessionStore = defineStore('session', () => {
     user.value = me.user;
     csrfToken.value = me.csrfToken;
     provider.value = me.signInProvider;
+    devOutbox.value = me.devOutbox;
     loaded.value = true;
   }
 
@@ -63,5 +66,5 @@ export const useSessionStore = defineStore('session', () => {
     },
   });
 
-  return { user, csrfToken, provider, loaded, isSignedIn, refresh, ensureLoaded, signIn, signOut, satisfies };
+  return { user, csrfToken, provider, devOutbox, loaded, isSignedIn, refresh, ensureLoaded, signIn, signOut, satisfies };
 });

@@ -1,11 +1,7 @@
-/**
- * Contracts of the unsubscribe and development outbox routes. They live with the mail code
- * (shared/contracts/ belongs to the feature owners); the two pages mirror these shapes in
- * app/composables/mail.ts.
- */
+/** Contracts of the unsubscribe and development outbox routes (server and pages share them). */
 import { z } from 'zod';
-import { notificationKinds } from '../../shared/contracts/errata';
-import { notificationModes } from '../../shared/domain';
+import { notificationKinds } from './errata';
+import { notificationModes } from '../domain';
 
 export const unsubscribeQuerySchema = z.object({ token: z.string().max(400).optional() });
 
@@ -39,3 +35,7 @@ export const outboxMessageSchema = outboxSummarySchema
     html: z.string().nullable(),
   })
   .meta({ id: 'DevOutboxMessage' });
+
+export type OutboxSummary = z.infer<typeof outboxSummarySchema>;
+export type OutboxMessage = z.infer<typeof outboxMessageSchema>;
+export type UnsubscribeScope = UnsubscribeState['kind'];
