@@ -203,6 +203,17 @@ export function statusSummary(counts: StatusCounts): string {
   return parts.length > 0 ? parts.join(' · ') : 'No errata';
 }
 
+/**
+ * The counts line above the table. `scope` is what the filters other than status let through; when
+ * that is not everything, the line says so: "In this view, 7 of 8 errata: 1 open · …".
+ */
+export function statusLine(total: number, scope: readonly Pick<Erratum, 'status'>[]): string {
+  if (total === 0) return 'No errata recorded yet.';
+  const counts = statusSummary(statusCounts(scope));
+  if (scope.length === total) return `${errataCount(total)}: ${counts}`;
+  return `In this view, ${scope.length} of ${errataCount(total)}: ${scope.length === 0 ? 'none' : counts}`;
+}
+
 export function errataCount(n: number): string {
   return n === 1 ? '1 erratum' : `${n} errata`;
 }

@@ -15,6 +15,7 @@ import {
   selectErrata,
   sortErrata,
   statusCounts,
+  statusLine,
   statusSummary,
   type ErrataFilters,
 } from '@/components/errata/filter';
@@ -193,6 +194,14 @@ describe('status counts', () => {
     expect(statusSummary(statusCounts(errata))).toBe("2 open · 2 with a workaround · 1 fixed later · 1 won't fix");
     expect(statusSummary({ open: 3, workaround: 0, fixed_later: 4, wont_fix: 0 })).toBe('3 open · 4 fixed later');
     expect(statusSummary(statusCounts([]))).toBe('No errata');
+  });
+
+  it('says when the counts cover only part of the errata', () => {
+    expect(statusLine(6, errata)).toBe("6 errata: 2 open · 2 with a workaround · 1 fixed later · 1 won't fix");
+    const onC = filterErrata(errata, withFilters({ myBoard: revC.id }));
+    expect(statusLine(6, onC)).toBe('In this view, 1 of 6 errata: 1 open');
+    expect(statusLine(6, [])).toBe('In this view, 0 of 6 errata: none');
+    expect(statusLine(0, [])).toBe('No errata recorded yet.');
   });
 });
 
