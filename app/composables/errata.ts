@@ -12,14 +12,13 @@ import type {
   ErratumSaveResult,
   SaveErratum,
 } from '@shared/contracts/errata';
-import type { RevisionDetail, RevisionList, RevisionSummary } from '@shared/contracts/projects';
-import { computed, ref, toValue, type MaybeRefOrGetter, type Ref } from 'vue';
+import { computed, toValue, type MaybeRefOrGetter, type Ref } from 'vue';
 import { useRoute, useRouter, type LocationQuery } from 'vue-router';
 import type { z } from 'zod';
 import { filtersFromQuery, filtersToQuery, QUERY_KEYS, type ErrataFilters } from '@/components/errata/filter';
 import { http } from './http';
 import { reportUnexpected } from './notifier';
-import type { RevisionHistory } from './revisions';
+import { useRevisionHistory, type RevisionHistory } from './revisions';
 
 export type CategoryList = z.infer<typeof categoryListSchema>;
 
@@ -62,50 +61,15 @@ export function useErratumHistory(
   slug: MaybeRefOrGetter<string>,
   number: MaybeRefOrGetter<number>,
 ): RevisionHistory<ErratumDetail, ErratumSaveResult> & { erratum: Ref<ErratumDetail | null> } {
-  const revisions = ref<RevisionSummary[]>([]);
-  const erratum = ref<ErratumDetail | null>(null);
-  const loading = ref(false);
-  const cache = new Map<string, Promise<RevisionDetail>>();
   const path = () => one(toValue(slug), toValue(number));
-
-  async function load() {
-    loading.value = true;
-    try {
-      const [item, list] = await Promise.all([
-        http.get<ErratumDetail>(path()),
-        http.get<RevisionList>(`${path()}/revisions`),
-      ]);
-      erratum.value = item;
-      revisions.value = list.items;
-    } finally {
-      loading.value = false;
-    }
-  }
-
-  function fetchRevision(revision: number): Promise<RevisionDetail> {
-    const key = `${path()}/revisions/${revision}`;
-    let pending = cache.get(key);
-    if (!pending) {
-      pending = http.get<RevisionDetail>(key);
-      cache.set(key, pending);
-      // A failed fetch must not stick: the next attempt asks the server again.
-      pending.catch(() => cache.delete(key));
-    }
-    return pending;
-  }
-
-  async function restore(revision: number, baseRevision: number, message = ''): Promise<ErratumSaveResult> {
-    const result = await http.post<ErratumSaveResult>(`${path()}/restore`, {
-      number: revision,
-      baseRevision,
-      message: message.trim(),
-    });
-    erratum.value = result.erratum;
-    await load();
-    return result;
-  }
-
-  return { revisions, subject: erratum, erratum, loading, load, fetchRevision, restore };
+  const history = useRevisionHistory<ErratumDetail, ErratumSaveResult>({
+    subjectPath: path,
+    historyPath: () => `${path()}/revisions`,
+    restorePath: () => `${path()}/restore`,
+    restoreBody: (revision, baseRevision, message) => ({ number: revision, baseRevision, message }),
+    subjectOf: (result) => result.erratum,
+  });
+  return { ...history, erratum: history.subject };
 }
 
 /**

@@ -32,7 +32,7 @@ export interface RevisionHistory<Subject, SaveResult> {
   restore(number: number, baseRevision: number, message?: string): Promise<SaveResult>;
 }
 
-interface HistoryEndpoints<Subject, SaveResult> {
+export interface HistoryEndpoints<Subject, SaveResult> {
   subjectPath: () => string;
   historyPath: () => string;
   restorePath: () => string;
@@ -40,7 +40,8 @@ interface HistoryEndpoints<Subject, SaveResult> {
   subjectOf: (result: SaveResult) => Subject;
 }
 
-function useRevisionHistory<Subject, SaveResult>(
+/** The history of any versioned item, given where it lives; the per-kind composables wrap it. */
+export function useRevisionHistory<Subject, SaveResult>(
   endpoints: HistoryEndpoints<Subject, SaveResult>,
 ): RevisionHistory<Subject, SaveResult> {
   const revisions = ref<RevisionSummary[]>([]);

@@ -7,7 +7,7 @@ import '../editor/vuetify-env';
 import { mount } from '@vue/test-utils';
 import { describe, expect, it } from 'vitest';
 import { createVuetify } from 'vuetify';
-import TagChip from '@/components/lessons/TagChip.vue';
+import TagChip from '@/components/tags/TagChip.vue';
 import { sameTag, tagStateOf } from '@/composables/tags';
 
 const known = [
