@@ -22,10 +22,21 @@ export interface BenchDatabase extends Database {
   stop(): Promise<void>;
 }
 
+/** Clusters still running, stopped on exit even when a benchmark fails half-way. */
+const running = new Set<() => void>();
+process.on('exit', () => {
+  for (const stop of running) stop();
+});
+
 export async function startBenchDatabase(): Promise<BenchDatabase> {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'rwb-bench-'));
   fs.chmodSync(dir, 0o755);
   const cluster = startCluster({ dataDir: path.join(dir, 'data'), port: await freePort(), log: () => {} });
+  const emergencyStop = () => {
+    cluster.stop();
+    fs.rmSync(dir, { recursive: true, force: true });
+  };
+  running.add(emergencyStop);
   const url = await ensureDatabase(cluster.superuserUrl, { role: 'bench', password: 'bench', database: 'bench' });
   await migrateDatabase(url);
   const database = createDatabase(url, { max: 10, log: () => {} });
@@ -34,9 +45,9 @@ export async function startBenchDatabase(): Promise<BenchDatabase> {
     ...database,
     url,
     async stop() {
+      running.delete(emergencyStop);
       await database.close();
-      cluster.stop();
-      fs.rmSync(dir, { recursive: true, force: true });
+      emergencyStop();
     },
   };
 }

@@ -17,7 +17,12 @@ for (const [name, importSuite] of Object.entries(suites)) {
   if (wanted.length && !wanted.includes(name)) continue;
   console.log(`## ${name}\n`);
   const suite = await importSuite();
-  for (const line of await suite.run(seconds)) console.log(line);
+  try {
+    for (const line of await suite.run(seconds)) console.log(line);
+  } catch (error) {
+    console.error(`benchmark ${name} failed:`, error);
+    process.exitCode = 1;
+  }
   console.log('');
 }
-process.exit(0);
+process.exit(process.exitCode ?? 0);
