@@ -55,8 +55,10 @@ describe('contributing an erratum', () => {
     await title.fill('Servo hums at the end of travel (high water)');
     await owner.page.getByTestId('accept-edited').click();
     await owner.page.getByTestId('result-link').click();
-    await owner.page.getByText('Servo hums at the end of travel (high water)').first().waitFor();
-    expect(await owner.page.locator('main').textContent()).toContain('Bram Tolliver');
+    await expect.poll(() => owner.page.url()).toMatch(/\/projects\/tide-clock\/errata\/E\d+$/);
+    await owner.page.getByRole('heading', { name: /Servo hums at the end of travel \(high water\)/ }).waitFor();
+    // Credited to the contributor on the erratum page.
+    await owner.page.locator('main').getByText('Bram Tolliver').first().waitFor();
 
     // The errata table lists it.
     await owner.page.goto('/projects/tide-clock/errata');
