@@ -541,13 +541,39 @@ export const uploads = pgTable(
     originalName: text('original_name').notNull(),
     altText: text('alt_text').notNull().default(''),
     caption: text('caption').notNull().default(''),
+    /** Key of the original in the storage port (content-addressed: derived from sha256). */
+    storageKey: text('storage_key').notNull(),
     variants: jsonb('variants').notNull().default(sql`'[]'::jsonb`),
+    /** What processing found: frames of an animation, ZIP entries, why it failed. */
     details: jsonb('details').notNull().default(sql`'{}'::jsonb`),
+    /** When nothing references it any more; removed after a grace period unless referenced again. */
+    unreferencedSince: timestamp('unreferenced_since', { withTimezone: true }),
     hiddenAt: hiddenAt(),
     hiddenReason: hiddenReason(),
     createdAt: createdAt(),
   },
-  (t) => [index('uploads_project_idx').on(t.projectId), index('uploads_sha256_idx').on(t.sha256)],
+  (t) => [
+    index('uploads_project_idx').on(t.projectId),
+    index('uploads_sha256_idx').on(t.sha256),
+    index('uploads_owner_idx').on(t.ownerId),
+  ],
+);
+
+/**
+ * Which content uses which upload (images in Markdown, the cover photo). Kept in step by every
+ * save; an upload with no reference left is swept after a grace period.
+ */
+export const uploadRefs = pgTable(
+  'upload_refs',
+  {
+    uploadId: integer('upload_id')
+      .notNull()
+      .references(() => uploads.id, { onDelete: 'cascade' }),
+    /** 'document' | 'erratum' | 'lesson' | 'comment' | 'proposal' | 'project_cover' | 'board_revision' */
+    subject: text('subject').notNull(),
+    subjectId: integer('subject_id').notNull(),
+  },
+  (t) => [primaryKey({ columns: [t.uploadId, t.subject, t.subjectId] }), index('upload_refs_subject_idx').on(t.subject, t.subjectId)],
 );
 
 // ---------------------------------------------------------------------------------------------
