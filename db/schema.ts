@@ -11,6 +11,7 @@ import {
   bigint,
   boolean,
   check,
+  customType,
   date,
   index,
   integer,
@@ -667,3 +668,58 @@ export const notificationSettings = pgTable(
   },
   (t) => [primaryKey({ columns: [t.userId, t.kind] })],
 );
+
+// ---------------------------------------------------------------------------------------------
+// Search (PostgreSQL full-text, the embedded default; see api/search)
+
+const tsvector = customType<{ data: string }>({ dataType: () => 'tsvector' });
+
+/**
+ * One row per searchable item, rebuilt by the indexer from the outbox. `visible` is whether
+ * anyone may read it (published, not hidden, not deleted); members of a project also see its
+ * drafts, which the query decides from `project_id`.
+ */
+export const searchDocs = pgTable(
+  'search_docs',
+  {
+    id: bigint('id', { mode: 'number' }).primaryKey().generatedAlwaysAsIdentity(),
+    kind: text('kind').notNull(),
+    refId: integer('ref_id').notNull(),
+    projectId: integer('project_id'),
+    visible: boolean('visible').notNull(),
+    title: text('title').notNull(),
+    /** Plain text the snippet is cut from. */
+    body: text('body').notNull().default(''),
+    url: text('url').notNull(),
+    projectSlug: text('project_slug'),
+    projectTitle: text('project_title'),
+    category: text('category'),
+    severity: text('severity'),
+    status: text('status'),
+    tags: text('tags').array().notNull().default(sql`'{}'::text[]`),
+    parts: text('parts').array().notNull().default(sql`'{}'::text[]`),
+    pins: text('pins').array().notNull().default(sql`'{}'::text[]`),
+    tsv: tsvector('tsv').notNull(),
+    updatedAt: timestamp('updated_at', { withTimezone: true }).notNull(),
+  },
+  (t) => [
+    uniqueIndex('search_docs_ref_key').on(t.kind, t.refId),
+    index('search_docs_tsv_idx').using('gin', t.tsv),
+    index('search_docs_updated_idx').on(t.updatedAt),
+    index('search_docs_project_idx').on(t.projectId),
+  ],
+);
+
+/** Items whose search rows must be rebuilt; filled by triggers on the source tables. */
+export const searchOutbox = pgTable('search_outbox', {
+  id: bigint('id', { mode: 'number' }).primaryKey().generatedAlwaysAsIdentity(),
+  kind: text('kind').notNull(),
+  refId: integer('ref_id').notNull(),
+  queuedAt: timestamp('queued_at', { withTimezone: true }).notNull().defaultNow(),
+});
+
+/** Words and codes seen in titles, parts, pins and tags: the vocabulary of "did you mean". */
+export const searchTerms = pgTable('search_terms', {
+  term: text('term').primaryKey(),
+  docs: integer('docs').notNull().default(0),
+});
