@@ -24,6 +24,7 @@ import { registerLessonRoutes } from './lessons/router';
 import { registerNotificationRoutes } from './notifications/router';
 import { registerProposalRoutes } from './proposals/router';
 import { registerTagRoutes } from './tags/router';
+import { registerSearchRoutes } from './search/router';
 
 export interface BuiltApp {
   app: Express;
@@ -51,6 +52,7 @@ function registerRoutes(routes: ApiRoutes, ctx: AppContext, passport: ReturnType
   registerTagRoutes(routes, ctx);
   registerProposalRoutes(routes, ctx);
   registerNotificationRoutes(routes, ctx);
+  registerSearchRoutes(routes, ctx);
 }
 
 export function createApp(ctx: AppContext, options: AppOptions = {}): BuiltApp {

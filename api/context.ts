@@ -8,6 +8,7 @@ import type { Outbox } from './fakes/smtp';
 import type { Jobs } from './jobs/queue';
 import type { Logger } from './log';
 import type { Mailer } from './mail/mailer';
+import type { SearchBackend } from './search/backend';
 
 export interface AppContext {
   config: Config;
@@ -22,6 +23,8 @@ export interface AppContext {
   mail: Mailer;
   /** The local mail capture, when it stands in for SMTP (development and tests). */
   outbox?: Outbox;
+  /** Answers searches when set (Meilisearch); PostgreSQL full-text otherwise (api/search). */
+  searchBackend?: SearchBackend;
 }
 
 export interface GithubEndpoints {

@@ -700,11 +700,14 @@ export const searchDocs = pgTable(
     parts: text('parts').array().notNull().default(sql`'{}'::text[]`),
     pins: text('pins').array().notNull().default(sql`'{}'::text[]`),
     tsv: tsvector('tsv').notNull(),
+    /** Titles, part numbers and pin labels alone: a second, small candidate set (see api/search). */
+    titleTsv: tsvector('title_tsv').notNull(),
     updatedAt: timestamp('updated_at', { withTimezone: true }).notNull(),
   },
   (t) => [
     uniqueIndex('search_docs_ref_key').on(t.kind, t.refId),
     index('search_docs_tsv_idx').using('gin', t.tsv),
+    index('search_docs_title_tsv_idx').using('gin', t.titleTsv),
     index('search_docs_updated_idx').on(t.updatedAt),
     index('search_docs_project_idx').on(t.projectId),
   ],

@@ -1,0 +1,21 @@
+import { searchQuerySchema, searchResultSchema } from '../../shared/contracts/search';
+import type { AppContext } from '../context';
+import { access, type ApiRoutes } from '../http/routes';
+import { rateLimit } from '../middleware/rate-limit';
+import { search } from './service';
+
+export function registerSearchRoutes(routes: ApiRoutes, ctx: AppContext) {
+  const searches = rateLimit(ctx, { name: 'search', points: 600, durationSeconds: 60 });
+  routes.get(
+    '/search',
+    {
+      summary: 'Search every project you can read: words, "phrases", -exclusions, OR; filters and facets',
+      tag: 'search',
+      access: access.public,
+      query: searchQuerySchema,
+      response: searchResultSchema,
+      before: [searches],
+    },
+    ({ user, query }) => search(ctx, user, query),
+  );
+}
