@@ -13,6 +13,31 @@ const VOLTAGE_DECIMAL = /(?<![\w.,])(\d{1,3})[.,](\d{1,2})\s?[vV](?![\w])/g;
 const VOLTAGE_WHOLE = /(?<![\w.,])(\d{1,4})\s?[vV](?![\w])/g;
 const VOLTAGE_INFIX = /(?<![\w.,])(\d{1,3})[vV](\d{1,2})(?![\w])/g;
 
+// Component values as makers write them: 4.7k, 4k7, 4.7 kΩ, 4K7 ohm → 4k7; 10 kΩ → 10k; 2.2uF → 2u2f.
+// NFKC turns the micro sign (µ) into Greek mu (μ): both are accepted.
+const VALUE_DECIMAL = /(?<![\w.,])(\d{1,3})[.,](\d{1,2})\s?([kKMmuµμnp])(?:\s?(Ω|ohms?|[fF]))?(?![\w])/g;
+const VALUE_INFIX = /(?<![\w.,])(\d{1,3})([kKMRuµμnp])(\d{1,2})(?:\s?(Ω|ohms?|[fF]))?(?![\w])/g;
+const VALUE_WHOLE = /(?<![\w.,])(\d{1,4})\s?([kKM])\s?(Ω|ohms?)(?![\w])/g;
+
+function unit(prefix: string, suffix: string | undefined): { p: string; f: string } {
+  const p = prefix === 'µ' || prefix === 'μ' ? 'u' : prefix === 'M' ? 'M' : prefix.toLowerCase();
+  return { p, f: suffix && /^[fF]$/.test(suffix) ? 'f' : '' };
+}
+
+/** One spelling per resistor or capacitor value. */
+export function normalizeValues(text: string): string {
+  return text
+    .replace(VALUE_DECIMAL, (_m, whole: string, frac: string, prefix: string, suffix?: string) => {
+      const u = unit(prefix, suffix);
+      return `${whole}${u.p}${frac}${u.f}`.toLowerCase();
+    })
+    .replace(VALUE_INFIX, (_m, whole: string, prefix: string, frac: string, suffix?: string) => {
+      const u = unit(prefix === 'R' ? 'r' : prefix, suffix);
+      return `${whole}${u.p}${frac}${u.f}`.toLowerCase();
+    })
+    .replace(VALUE_WHOLE, (_m, whole: string, prefix: string) => `${whole}${prefix.toLowerCase()}`);
+}
+
 /** One spelling per voltage, lowercased; everything else untouched. */
 export function normalizeVoltages(text: string): string {
   return text
@@ -23,7 +48,7 @@ export function normalizeVoltages(text: string): string {
 
 /** Text as the index and the query parser get it. */
 export function normalizeForSearch(text: string): string {
-  return normalizeVoltages(text.normalize('NFKC'));
+  return normalizeValues(normalizeVoltages(text.normalize('NFKC')));
 }
 
 const CODE = /^(?=.*\d)(?=.*[a-z])[a-z0-9]{2,32}$/;

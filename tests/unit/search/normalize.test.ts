@@ -25,6 +25,24 @@ describe('voltage spellings', () => {
   });
 });
 
+describe('component values', () => {
+  it.each([
+    ['4.7k', '4k7'],
+    ['4k7', '4k7'],
+    ['4.7 kΩ', '4k7'],
+    ['4K7 ohm', '4k7'],
+    ['10 kΩ', '10k'],
+    ['2.2uF', '2u2f'],
+    ['2.2 µF', '2u2f'],
+  ])('%s becomes %s', (input, expected) => {
+    expect(normalizeForSearch(input)).toBe(expected);
+  });
+
+  it('leaves plain numbers and other units alone', () => {
+    expect(normalizeForSearch('400 mA, 97 %, 12 mm, 5 A')).toBe('400 mA, 97 %, 12 mm, 5 A');
+  });
+});
+
 describe('part numbers and pin labels', () => {
   it('index their tails after letter/digit boundaries', () => {
     expect(codeTails('ATmega328P')).toEqual(['328p']);
