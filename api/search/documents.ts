@@ -65,7 +65,8 @@ async function projectInfo(db: DbOrTx, ids: number[]): Promise<Map<number, Proje
     .select({ id: projects.id, slug: projects.slug, title: projects.title, status: projects.status, hidden: projects.hiddenAt, deleted: projects.deletedAt })
     .from(projects)
     .where(inArray(projects.id, ids));
-  return new Map(rows.map((r) => [r.id, { id: r.id, slug: r.slug, title: r.title, visible: r.status === 'published' && !r.hidden && !r.deleted }]));
+  // A deleted project's items leave the index for everyone, its members included.
+  return new Map(rows.filter((r) => !r.deleted).map((r) => [r.id, { id: r.id, slug: r.slug, title: r.title, visible: r.status === 'published' && !r.hidden }]));
 }
 
 /** Tag names with their aliases, per item, for the tag fields of errata and lessons. */
