@@ -70,7 +70,7 @@ async function send<T>(method: Method, path: string, options: RequestOptions, re
     });
   } catch (error) {
     if ((error as Error).name === 'AbortError') throw error;
-    throw new ApiError(0, 'network', 'Reworkbook could not reach the server. Check your connection and try again.');
+    throw networkError();
   }
   if (response.status === 204) return undefined as T;
   const text = await response.text();
@@ -83,17 +83,37 @@ async function send<T>(method: Method, path: string, options: RequestOptions, re
     }
   }
   if (response.ok) return data as T;
+  if (isErrorBody(data) && data.error.code === 'csrf_failed' && !retried) {
+    await hooks.refreshCsrf();
+    return send<T>(method, path, options, true);
+  }
+  throw errorFromResponse(response.status, response.statusText, data);
+}
+
+function networkError(): ApiError {
+  return new ApiError(0, 'network', 'Reworkbook could not reach the server. Check your connection and try again.');
+}
+
+/** The ApiError for a failed answer (its parsed JSON body, if any); a 401 ends the session here. */
+function errorFromResponse(status: number, statusText: string, data: unknown): ApiError {
   if (isErrorBody(data)) {
     const { code, message, details } = data.error;
-    if (code === 'csrf_failed' && !retried) {
-      await hooks.refreshCsrf();
-      return send<T>(method, path, options, true);
-    }
     if (code === 'unauthenticated') hooks.onUnauthenticated();
-    throw new ApiError(response.status, code, message, details);
+    return new ApiError(status, code, message, details);
   }
-  throw new ApiError(response.status, 'internal', `The server answered ${response.status} ${response.statusText}.`);
+  return new ApiError(status, 'internal', `The server answered ${status} ${statusText}.`);
 }
+
+/**
+ * For the one request fetch cannot make: uploads with progress go through XMLHttpRequest
+ * (composables/uploads.ts), and reuse the token, the stale-token refresh and the error parsing here.
+ */
+export const httpTransport = {
+  csrfToken: () => hooks.csrfToken(),
+  refreshCsrf: () => hooks.refreshCsrf(),
+  networkError,
+  errorFromResponse,
+};
 
 export const http = {
   get: <T>(path: string, options: RequestOptions = {}) => send<T>('GET', path, options, false),

@@ -44,6 +44,12 @@ export const routes = [
     component: () => import('@/pages/ProjectHistoryPage.vue'),
     meta: { title: 'Details history' },
   },
+  {
+    path: '/projects/:slug/gallery',
+    name: 'project-gallery',
+    component: () => import('@/pages/ProjectGalleryPage.vue'),
+    meta: { title: 'Photos and files' },
+  },
   { path: '/projects/:slug/log/:documentId', name: 'log-entry', component: () => import('@/pages/LogEntryPage.vue') },
   {
     path: '/projects/:slug/documents/:documentId/edit',

@@ -18,6 +18,7 @@ export interface RouteNamedMap {
   project: RouteRecordInfo<'project', '/projects/:slug', Slug, Slug>;
   'project-settings': RouteRecordInfo<'project-settings', '/projects/:slug/settings', Slug, Slug>;
   'project-history': RouteRecordInfo<'project-history', '/projects/:slug/history', Slug, Slug>;
+  'project-gallery': RouteRecordInfo<'project-gallery', '/projects/:slug/gallery', Slug, Slug>;
   'log-entry': RouteRecordInfo<'log-entry', '/projects/:slug/log/:documentId', SlugDoc, SlugDocOut>;
   'document-edit': RouteRecordInfo<'document-edit', '/projects/:slug/documents/:documentId/edit', SlugDoc, SlugDocOut>;
   'document-history': RouteRecordInfo<
