@@ -16,6 +16,7 @@ declare module 'vue-router' {
 
 export const routes = [
   { path: '/', name: 'home', component: () => import('@/pages/HomePage.vue'), meta: { title: 'Reworkbook' } },
+  { path: '/search', name: 'search', component: () => import('@/pages/SearchPage.vue'), meta: { title: 'Search' } },
   { path: '/sign-in', name: 'sign-in', component: () => import('@/pages/SignInPage.vue'), meta: { title: 'Sign in' } },
   { path: '/unsubscribe', name: 'unsubscribe', component: () => import('@/pages/UnsubscribePage.vue'), meta: { title: 'Unsubscribe' } },
   { path: '/dev/outbox', name: 'dev-outbox', component: () => import('@/pages/DevOutboxPage.vue'), meta: { title: 'Outbox' } },

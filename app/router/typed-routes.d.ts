@@ -10,6 +10,7 @@ type SlugCode = { slug: string; code: string };
 /** Every named route with its params; keep in step with routes.ts. */
 export interface RouteNamedMap {
   home: RouteRecordInfo<'home', '/', NoParams, NoParams>;
+  search: RouteRecordInfo<'search', '/search', NoParams, NoParams>;
   'sign-in': RouteRecordInfo<'sign-in', '/sign-in', NoParams, NoParams>;
   unsubscribe: RouteRecordInfo<'unsubscribe', '/unsubscribe', NoParams, NoParams>;
   'dev-outbox': RouteRecordInfo<'dev-outbox', '/dev/outbox', NoParams, NoParams>;
