@@ -78,7 +78,7 @@ async function searchAs(role: Role, q: string) {
   return res.body as {
     items: { title: string }[];
     total: { value: number };
-    facets: Record<string, { value: string; count: number }[]>;
+    facets: Record<'kind' | 'category' | 'severity' | 'status' | 'tag' | 'part' | 'project', { value: string; count: number }[]>;
   };
 }
 

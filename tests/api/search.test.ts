@@ -22,7 +22,7 @@ async function search(query: string, agent = t.agent()) {
     total: { value: number; exact: boolean };
     correctedQuery: string | null;
     suggestions: string[];
-    facets: Record<string, { value: string; count: number }[]>;
+    facets: Record<'kind' | 'category' | 'severity' | 'status' | 'tag' | 'part' | 'project', { value: string; count: number }[]>;
   };
 }
 

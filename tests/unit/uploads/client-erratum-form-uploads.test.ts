@@ -84,7 +84,7 @@ describe('ErratumForm with uploads', { timeout: 20_000 }, () => {
     await settle();
     expect(settled).toBe(true);
     expect(w.emitted('uploading')).toEqual([[true], [false]]);
-    expect((w.props('modelValue') as ErratumFieldsInput).workaround).toBe('![](/api/uploads/12/page.webp)');
-    expect((w.props('modelValue') as ErratumFieldsInput).symptom).toBe('');
+    expect((w.props() as { modelValue: ErratumFieldsInput }).modelValue.workaround).toBe('![](/api/uploads/12/page.webp)');
+    expect((w.props() as { modelValue: ErratumFieldsInput }).modelValue.symptom).toBe('');
   });
 });
