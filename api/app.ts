@@ -24,6 +24,7 @@ import { registerLessonRoutes } from './lessons/router';
 import { registerNotificationRoutes } from './notifications/router';
 import { registerProposalRoutes } from './proposals/router';
 import { registerTagRoutes } from './tags/router';
+import { registerUploadRoutes } from './uploads/router';
 import { registerSearchRoutes } from './search/router';
 
 export interface BuiltApp {
@@ -53,6 +54,7 @@ function registerRoutes(routes: ApiRoutes, ctx: AppContext, passport: ReturnType
   registerProposalRoutes(routes, ctx);
   registerNotificationRoutes(routes, ctx);
   registerSearchRoutes(routes, ctx);
+  registerUploadRoutes(routes, ctx);
 }
 
 export function createApp(ctx: AppContext, options: AppOptions = {}): BuiltApp {

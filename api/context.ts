@@ -8,6 +8,7 @@ import type { Outbox } from './fakes/smtp';
 import type { Jobs } from './jobs/queue';
 import type { Logger } from './log';
 import type { Mailer } from './mail/mailer';
+import type { Storage } from './storage/port';
 import type { SearchBackend } from './search/backend';
 
 export interface AppContext {
@@ -25,6 +26,8 @@ export interface AppContext {
   outbox?: Outbox;
   /** Answers searches when set (Meilisearch); PostgreSQL full-text otherwise (api/search). */
   searchBackend?: SearchBackend;
+  /** Uploaded files: a local folder or S3-compatible storage (api/storage/). */
+  storage: Storage;
 }
 
 export interface GithubEndpoints {

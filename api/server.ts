@@ -19,6 +19,8 @@ import { createJobs, type JobsOptions } from './jobs/queue';
 import { createLogger, type Logger } from './log';
 import { createMailer } from './mail/mailer';
 import { startMaintenance } from './maintenance';
+import { createStorage } from './storage/storage';
+import { reconcileUploads } from './uploads/jobs';
 
 export const FAKE_CLIENT = { id: 'reworkbook-local', secret: 'reworkbook-local-secret' };
 
@@ -93,12 +95,29 @@ export async function startServer(config: Config, options: StartOptions = {}): P
       if (config.production) log.warn(`SMTP_URL is not set: e-mail is only captured locally (${outbox.url}) and never delivered.`);
       else log.info(`Local mail capture at ${outbox.url}; see /dev/outbox`);
     }
-    const base = { config, database, db: database.db, log, github, mail: createMailer(config, outbox?.url), ...(outbox ? { outbox } : {}) };
+    const storage = createStorage(config);
+    stops.push(() => storage.close?.());
+    const base = {
+      config,
+      database,
+      db: database.db,
+      log,
+      github,
+      mail: createMailer(config, outbox?.url),
+      storage,
+      ...(outbox ? { outbox } : {}),
+    };
     const jobs = createJobs(base, options.jobs);
     await jobs.start();
     // Stops before the mail capture and the database (stops run in reverse): running jobs finish first.
     stops.push(() => jobs.stop());
     const ctx: AppContext = { ...base, jobs };
+    // Storage and rows back in step (and lost variant jobs queued again) before any request.
+    try {
+      await reconcileUploads(ctx);
+    } catch (error) {
+      throw new Error(`Uploaded files could not be checked in ${storage.description}: ${(error as Error).message}`, { cause: error });
+    }
     stops.push(startMaintenance(ctx));
     const { app } = createApp(ctx, options.clientDir ? { clientDir: options.clientDir } : {});
     const server = await new Promise<Server>((resolve, reject) => {

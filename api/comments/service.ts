@@ -10,32 +10,38 @@ import type { AppContext } from '../context';
 import type { AuthUser } from '../http/routes';
 import { renderCached } from '../markdown/cache';
 import { plainTextOf } from '../markdown/render';
+import { imagesForMarkdown, type ImageMap } from '../uploads/images';
+import { syncUploadRefs } from '../uploads/refs';
 
 export type ThreadTarget = { proposalId: number } | { erratumId: number };
 
 const whereTarget = (target: ThreadTarget) =>
   'proposalId' in target ? eq(comments.proposalId, target.proposalId) : eq(comments.erratumId, target.erratumId);
 
-function toComment(row: {
-  id: number;
-  body: string;
-  createdAt: Date;
-  authorId: number;
-  handle: string;
-  displayName: string;
-  avatarUrl: string | null;
-}): Comment {
+function toComment(
+  row: {
+    id: number;
+    body: string;
+    createdAt: Date;
+    authorId: number;
+    handle: string;
+    displayName: string;
+    avatarUrl: string | null;
+  },
+  images: ImageMap,
+): Comment {
   return {
     id: row.id,
     author: { id: row.authorId, handle: row.handle, displayName: row.displayName, avatarUrl: row.avatarUrl },
     body: row.body,
-    html: renderCached(`comment:${row.id}`, row.body, `c${row.id}-`).html,
+    html: renderCached(`comment:${row.id}`, row.body, `c${row.id}-`, images).html,
     createdAt: row.createdAt.toISOString(),
   };
 }
 
 const columns = {
   id: comments.id,
+  projectId: comments.projectId,
   body: comments.body,
   createdAt: comments.createdAt,
   authorId: users.id,
@@ -51,7 +57,14 @@ export async function listComments(ctx: AppContext, target: ThreadTarget, user: 
     .innerJoin(users, eq(users.id, comments.authorId))
     .where(and(whereTarget(target), isNull(comments.hiddenAt)))
     .orderBy(asc(comments.createdAt), asc(comments.id));
-  return { items: rows.map(toComment), canComment: user !== null };
+  const images = rows.length
+    ? await imagesForMarkdown(
+        ctx.db,
+        rows.map((r) => r.body),
+        rows[0]!.projectId,
+      )
+    : new Map();
+  return { items: rows.map((row) => toComment(row, images)), canComment: user !== null };
 }
 
 /** Everyone who has commented in the thread (for notifications). */
@@ -71,13 +84,17 @@ export async function insertComment(
     .insert(comments)
     .values({ projectId, authorId: user.id, body, ...target })
     .returning({ id: comments.id, body: comments.body, createdAt: comments.createdAt });
-  return toComment({
-    ...row!,
-    authorId: user.id,
-    handle: user.handle,
-    displayName: user.displayName,
-    avatarUrl: user.avatarUrl,
-  });
+  await syncUploadRefs(tx, 'comment', row!.id, projectId, [body]);
+  return toComment(
+    {
+      ...row!,
+      authorId: user.id,
+      handle: user.handle,
+      displayName: user.displayName,
+      avatarUrl: user.avatarUrl,
+    },
+    await imagesForMarkdown(tx, [body], projectId),
+  );
 }
 
 /** A short plain-text excerpt of Markdown for notifications (markup removed by the renderer). */

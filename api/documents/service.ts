@@ -18,21 +18,34 @@ import { projectDetail, toDocumentSummary, viewerOf } from '../projects/service'
 import * as revisionQueries from '../revisions/queries';
 import { toRevisionDetail, toRevisionSummary } from '../revisions/present';
 import { saveVersioned, type VersionedStore } from '../revisions/versioned';
+import { imagesForMarkdown, type ImageMap } from '../uploads/images';
+import { syncUploadRefs } from '../uploads/refs';
 import * as q from './queries';
 
+/** `images`: the photos the text may show (api/uploads/images.ts). */
 export function toDocumentDetail(
   project: ProjectRow,
   doc: q.DocumentRow,
   role: ProjectRole | null,
+  images?: ImageMap,
 ): DocumentDetail {
   return {
-    ...toDocumentSummary(doc),
+    ...toDocumentSummary(doc, images),
     body: doc.body,
     projectSlug: project.slug,
     projectTitle: project.title,
     projectStatus: project.status,
     viewer: viewerOf(role),
   };
+}
+
+async function present(
+  ctx: AppContext,
+  project: ProjectRow,
+  doc: q.DocumentRow,
+  role: ProjectRole | null,
+): Promise<DocumentDetail> {
+  return toDocumentDetail(project, doc, role, await imagesForMarkdown(ctx.db, [doc.body], project.id));
 }
 
 async function load(ctx: AppContext, project: ProjectRow, id: number): Promise<q.DocumentRow> {
@@ -47,7 +60,7 @@ export async function getDocument(
   role: ProjectRole | null,
   id: number,
 ): Promise<DocumentDetail> {
-  return toDocumentDetail(project, await load(ctx, project, id), role);
+  return present(ctx, project, await load(ctx, project, id), role);
 }
 
 export async function addSection(
@@ -67,10 +80,11 @@ export async function addSection(
       loggedOn: null,
       authorId: user.id,
     });
+    await syncUploadRefs(tx, 'document', created.id, project.id, [created.body]);
     await projectQueries.touchProject(tx, project.id);
     return created;
   });
-  return toDocumentDetail(project, doc, role);
+  return present(ctx, project, doc, role);
 }
 
 export async function addLogEntry(
@@ -90,10 +104,11 @@ export async function addLogEntry(
       loggedOn: input.loggedOn,
       authorId: user.id,
     });
+    await syncUploadRefs(tx, 'document', created.id, project.id, [created.body]);
     await projectQueries.touchProject(tx, project.id);
     return created;
   });
-  return toDocumentDetail(project, doc, role);
+  return present(ctx, project, doc, role);
 }
 
 export function documentStore(project: ProjectRow, doc: q.DocumentRow): VersionedStore<q.DocumentFields> {
@@ -107,7 +122,12 @@ export function documentStore(project: ProjectRow, doc: q.DocumentRow): Versione
       if (!row) throw fail.notFound('The section or log entry');
       return { revision: row.currentRevision, fields: q.fieldsOf(row) };
     },
-    write: (tx, expected, fields) => q.writeDocument(tx, doc.id, expected, fields),
+    // Every save of the text (edits, restores, accepted proposals) updates its upload references.
+    async write(tx, expected, fields) {
+      if (!(await q.writeDocument(tx, doc.id, expected, fields))) return false;
+      await syncUploadRefs(tx, 'document', doc.id, project.id, [fields.body]);
+      return true;
+    },
     toRow: (fields) => ({ title: fields.title, body: fields.body, fields: { loggedOn: fields.loggedOn } }),
     fromRow: (row) => ({
       title: row.title ?? '',
@@ -161,13 +181,17 @@ export async function saveDocument(
   return {
     outcome: result.outcome,
     mergedWith: result.mergedWith,
-    document: toDocumentDetail(project, await load(ctx, project, id), role),
+    document: await present(ctx, project, await load(ctx, project, id), role),
   };
 }
 
 export async function removeDocument(ctx: AppContext, project: ProjectRow, id: number): Promise<void> {
-  if (!(await q.softDeleteDocument(ctx.db, project.id, id))) throw fail.notFound('The section or log entry');
-  await projectQueries.touchProject(ctx.db, project.id);
+  await ctx.db.transaction(async (tx) => {
+    if (!(await q.softDeleteDocument(tx, project.id, id))) throw fail.notFound('The section or log entry');
+    // A removed text keeps nothing alive; its photos are swept after the grace period.
+    await syncUploadRefs(tx, 'document', id, project.id, []);
+    await projectQueries.touchProject(tx, project.id);
+  });
 }
 
 export async function reorderSections(

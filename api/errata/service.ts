@@ -25,6 +25,8 @@ import * as revisionQueries from '../revisions/queries';
 import { toRevisionDetail, toRevisionSummary } from '../revisions/present';
 import { contentHash, saveVersioned, type VersionedStore } from '../revisions/versioned';
 import { resolveTagIds, tagRefsByIds } from '../tags/service';
+import { imagesForMarkdown, type ImageMap } from '../uploads/images';
+import { syncUploadRefs } from '../uploads/refs';
 import * as q from './queries';
 import { notifyNewErratum } from './notify';
 import { withNotifications } from '../notifications/service';
@@ -144,11 +146,16 @@ export async function checkAgainstProject(ctx: AppContext | { db: Tx }, project:
 
 type Boards = Awaited<ReturnType<typeof q.projectBoards>>;
 
-function render(row: q.ErratumRow, field: (typeof ERRATUM_TEXT_FIELDS)[number]) {
-  return renderCached(`err:${row.id}:${row.currentRevision}:${field}`, row[field], `e${row.id}${field[0]}-`).html;
+function render(row: q.ErratumRow, field: (typeof ERRATUM_TEXT_FIELDS)[number], images: ImageMap) {
+  const key = `err:${row.id}:${row.currentRevision}:${field}`;
+  return renderCached(key, row[field], `e${row.id}${field[0]}-`, images).html;
 }
 
+const textsOf = (row: Pick<q.ErratumRow, (typeof ERRATUM_TEXT_FIELDS)[number]>) =>
+  ERRATUM_TEXT_FIELDS.map((field) => row[field]);
+
 async function present(ctx: AppContext, rows: q.ErratumRow[], boards: Boards): Promise<Erratum[]> {
+  const images = rows.length ? await imagesForMarkdown(ctx.db, rows.flatMap(textsOf), rows[0]!.projectId) : new Map();
   const categories = new Map((await q.listCategories(ctx.db)).map((c) => [c.slug, c]));
   const boardLabel = new Map(boards.map((b) => [b.id, b.label]));
   const tagIds = await q.tagIdsOfErrata(
@@ -187,10 +194,10 @@ async function present(ctx: AppContext, rows: q.ErratumRow[], boards: Boards): P
     workaround: row.workaround,
     fix: row.fix,
     html: {
-      symptom: render(row, 'symptom'),
-      cause: render(row, 'cause'),
-      workaround: render(row, 'workaround'),
-      fix: render(row, 'fix'),
+      symptom: render(row, 'symptom', images),
+      cause: render(row, 'cause', images),
+      workaround: render(row, 'workaround', images),
+      fix: render(row, 'fix', images),
     },
     reportedBy: row.reportedById !== null ? (reporters.get(row.reportedById) ?? null) : null,
     reportedByText: row.reportedByText ?? '',
@@ -241,6 +248,11 @@ export async function erratumDetail(
   const boards = await q.projectBoards(ctx.db, project.id);
   const [erratum] = await present(ctx, [row], boards);
   const lessons = await q.lessonsOfErratum(ctx.db, row.id);
+  const lessonImages = await imagesForMarkdown(
+    ctx.db,
+    lessons.map((l) => l.body),
+    project.id,
+  );
   return {
     ...erratum!,
     projectSlug: project.slug,
@@ -248,7 +260,7 @@ export async function erratumDetail(
     boards: boards.map((b) => ({ id: b.id, label: b.label })),
     lessons: lessons.map((l) => ({
       id: l.id,
-      html: renderCached(`lesson:${l.id}:${l.revision}`, l.body, `l${l.id}-`).html,
+      html: renderCached(`lesson:${l.id}:${l.revision}`, l.body, `l${l.id}-`, lessonImages).html,
     })),
     viewer: erratumViewer(role, user),
   };
@@ -305,6 +317,7 @@ export async function insertErratumWithRevision(
     origin: options.origin ?? 'create',
   });
   await q.setErratumTags(tx, row.id, options.tagIds);
+  await syncUploadRefs(tx, 'erratum', row.id, project.id, textsOf(row));
   await touchProject(tx, project.id);
   return row;
 }
@@ -338,7 +351,12 @@ export function erratumStore(project: ProjectRow, row: q.ErratumRow): VersionedS
       if (!current || current.hiddenAt) throw fail.notFound(`Erratum ${code(row.number)}`);
       return { revision: current.currentRevision, fields: toRevisionFields(fieldsOfRow(current)) };
     },
-    write: (tx, expected, fields) => q.writeErratum(tx, row.id, expected, stored(fromRevisionFields(fields))),
+    // Every save (edits, restores, accepted proposals) updates the erratum's upload references.
+    async write(tx, expected, fields) {
+      if (!(await q.writeErratum(tx, row.id, expected, stored(fromRevisionFields(fields))))) return false;
+      await syncUploadRefs(tx, 'erratum', row.id, project.id, textsOf(fields));
+      return true;
+    },
     toRow: (fields) => ({ fields }),
     fromRow: (stored) => stored.fields as ErratumRevisionFields,
   };

@@ -97,6 +97,12 @@ export interface RouteSpec<P extends ZodType | undefined, Q extends ZodType | un
   csrfExempt?: string;
   /** Runs before the access rule (rate limits). */
   before?: RequestHandler[];
+  /**
+   * A streamed request body (multipart uploads): this middleware reads it after the access rule
+   * and the CSRF check passed, so a refused request is answered before its body is stored. The
+   * route declares no `body` schema; `schema` only documents the form.
+   */
+  streamBody?: { contentType: string; schema: ZodType; read: RequestHandler };
   /** Non-JSON answers (redirects, files): documented as this media type, handler writes res. */
   produces?: string;
   /**
@@ -202,8 +208,21 @@ export class ApiRoutes {
 
     const run: RequestHandler = async (req, res) => {
       const state: RequestState = { ctx, req, res, user: req.user ?? null, locals: {} };
-      await spec.access.check(state);
-      if (unsafe && spec.csrfExempt === undefined) checkCsrf(req, ctx.config);
+      try {
+        await spec.access.check(state);
+        if (unsafe && spec.csrfExempt === undefined) checkCsrf(req, ctx.config);
+      } catch (error) {
+        // Refused before its body was read: close the connection after answering rather than
+        // receive the rest of an upload nobody will look at.
+        if (spec.streamBody) res.set('Connection', 'close');
+        throw error;
+      }
+      if (spec.streamBody) {
+        const read = spec.streamBody.read;
+        await new Promise<void>((resolve, reject) => {
+          void read(req, res, (error?: unknown) => (error ? reject(error) : resolve()));
+        });
+      }
       if (unsafe && spec.body && !req.is('application/json')) {
         throw new AppError('unsupported_media_type', 'Send the request body as application/json.');
       }
@@ -225,6 +244,8 @@ export class ApiRoutes {
       // The response schema strips anything a query returned that the contract does not expose.
       res.status(status).json(spec.response ? spec.response.parse(result) : result);
     };
+    if (spec.streamBody && spec.body)
+      throw new Error(`${method.toUpperCase()} ${path}: a streamed body has no body schema`);
     if (spec.session === false && (unsafe || spec.access.name !== 'public')) {
       throw new Error(`${method.toUpperCase()} ${path}: only public GET routes may skip the session`);
     }
@@ -251,6 +272,9 @@ export class ApiRoutes {
         ...(spec.params ? { params: spec.params as z.ZodObject } : {}),
         ...(spec.query ? { query: spec.query as z.ZodObject } : {}),
         ...(spec.body ? { body: { content: { 'application/json': { schema: spec.body } }, required: true } } : {}),
+        ...(spec.streamBody
+          ? { body: { content: { [spec.streamBody.contentType]: { schema: spec.streamBody.schema } }, required: true } }
+          : {}),
       },
       responses,
     });

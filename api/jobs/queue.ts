@@ -4,16 +4,19 @@
  * is retried with growing delays, so a mail server outage delays mail and loses none.
  *
  * Every process that enqueues starts a `Jobs` (it creates the queues); processes created with
- * `workers: false` only enqueue. Workers also own the schedules: the daily digest and the
- * sweep that recovers notifications whose enqueue was lost.
+ * `workers: false` only enqueue. Workers also own the schedules: the daily digest, the
+ * sweep that recovers notifications whose enqueue was lost, and the hourly uploads sweep.
+ * Photo variants (`upload-variants`) are made here too, off the request.
  */
 import PgBoss from 'pg-boss';
 import pg from 'pg';
 import type { AppContext } from '../context';
 import { DAILY_DIGEST_CRON, runDailyDigest } from './daily-digest';
 import { enqueuePendingNotificationEmails, sendNotificationEmail } from './notification-email';
+import { UPLOADS_SWEEP_CRON, processUploadVariants, sweepUploads } from '../uploads/jobs';
 
-export type JobName = 'notification-email' | 'daily-digest' | 'notification-email-sweep';
+export type JobName =
+  'notification-email' | 'daily-digest' | 'notification-email-sweep' | 'upload-variants' | 'uploads-sweep';
 
 export interface Jobs {
   /** Stores the job and resolves with its id (null: a job with that singleton key is already waiting). Never waits for the work. */
@@ -61,6 +64,9 @@ function queueSpecs(options: JobsOptions): Record<JobName, QueueSpec> {
       retryBackoff: false,
       expireInSeconds: 5 * 60,
     },
+    // One waiting and one running job per photo (singleton key upload-<id>); storage outages retry.
+    'upload-variants': { policy: 'stately', retryLimit: 8, retryDelay, retryBackoff: true, expireInSeconds: 10 * 60 },
+    'uploads-sweep': { policy: 'stately', retryLimit: 1, retryDelay, retryBackoff: false, expireInSeconds: 30 * 60 },
   };
 }
 
@@ -120,6 +126,15 @@ export function createJobs(ctx: Omit<AppContext, 'jobs'>, options: JobsOptions =
       await boss.work('notification-email-sweep', work, async () => ({
         queued: await enqueuePendingNotificationEmails(full),
       }));
+      await boss.work<{ uploadId?: unknown }>('upload-variants', work, async ([job]) => {
+        const id = Number(job!.data.uploadId);
+        if (!Number.isInteger(id) || id < 1) {
+          ctx.log.warn(`upload-variants job ${job!.id} names no upload; dropped`);
+          return { outcome: 'invalid' };
+        }
+        return { outcome: await processUploadVariants(full, id) };
+      });
+      await boss.work('uploads-sweep', work, async () => sweepUploads(full));
       if (schedule) {
         await boss.schedule('daily-digest', DAILY_DIGEST_CRON, {}, { tz: 'UTC', ...jobOptions('daily-digest') });
         await boss.schedule(
@@ -128,6 +143,7 @@ export function createJobs(ctx: Omit<AppContext, 'jobs'>, options: JobsOptions =
           {},
           { tz: 'UTC', ...jobOptions('notification-email-sweep') },
         );
+        await boss.schedule('uploads-sweep', UPLOADS_SWEEP_CRON, {}, { tz: 'UTC', ...jobOptions('uploads-sweep') });
       }
     },
     async stop() {

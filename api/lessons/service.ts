@@ -19,6 +19,8 @@ import { viewerOf } from '../projects/service';
 import { insertRevision } from '../revisions/queries';
 import { contentHash, saveVersioned, type SaveResult, type VersionedStore } from '../revisions/versioned';
 import { resolveTagIds, tagRefsByIds } from '../tags/service';
+import { imagesForMarkdown } from '../uploads/images';
+import { syncUploadRefs } from '../uploads/refs';
 
 type LessonRow = typeof lessons.$inferSelect;
 interface LessonFields {
@@ -57,6 +59,11 @@ async function setTags(tx: Tx, lessonId: number, tagIds: number[]) {
 async function present(ctx: AppContext, rows: LessonRow[]): Promise<Lesson[]> {
   const ids = rows.map((r) => r.id);
   if (!ids.length) return [];
+  const images = await imagesForMarkdown(
+    ctx.db,
+    rows.map((r) => r.body),
+    rows[0]!.projectId,
+  );
   const tagRows = await ctx.db.select().from(lessonTags).where(inArray(lessonTags.subjectId, ids));
   const refs = await tagRefsByIds(ctx.db, [...new Set(tagRows.map((t) => t.tagId))]);
   const links = await ctx.db
@@ -68,7 +75,7 @@ async function present(ctx: AppContext, rows: LessonRow[]): Promise<Lesson[]> {
   return rows.map((row) => ({
     id: row.id,
     body: row.body,
-    html: renderCached(`lesson:${row.id}:${row.currentRevision}`, row.body, `l${row.id}-`).html,
+    html: renderCached(`lesson:${row.id}:${row.currentRevision}`, row.body, `l${row.id}-`, images).html,
     tags: tagRows
       .filter((t) => t.subjectId === row.id)
       .map((t) => refs.get(t.tagId)!)
@@ -139,6 +146,7 @@ export async function createLesson(
     });
     await linkErrata(tx, created!.id, [...erratumIds.values()]);
     await setTags(tx, created!.id, await resolveTagIds(tx, user, parsed.tags));
+    await syncUploadRefs(tx, 'lesson', created!.id, project.id, [parsed.body]);
     await touchProject(tx, project.id);
     return created!;
   });
@@ -174,6 +182,7 @@ function lessonStore(project: ProjectRow, row: LessonRow): VersionedStore<Lesson
       if (updated.length !== 1) return false;
       const ids = await erratumIdsFor(tx, project.id, fields.errata.map(Number));
       await linkErrata(tx, row.id, [...ids.values()]);
+      await syncUploadRefs(tx, 'lesson', row.id, project.id, [fields.body]);
       return true;
     },
     toRow: (fields) => ({ body: fields.body, fields }),
@@ -222,6 +231,7 @@ export async function removeLesson(ctx: AppContext, project: ProjectRow, id: num
   await load(ctx.db, project, id);
   await ctx.db.transaction(async (tx) => {
     await tx.delete(lessons).where(and(eq(lessons.projectId, project.id), eq(lessons.id, id)));
+    await syncUploadRefs(tx, 'lesson', id, project.id, []);
     await touchProject(tx, project.id);
   });
 }

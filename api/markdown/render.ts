@@ -7,7 +7,10 @@
  *   on), a strict link policy and a low nesting limit;
  * - its output always goes through sanitize-html with an allow-list of exactly what this renderer
  *   can produce, so a markdown-it bug or a future plugin cannot smuggle in anything that runs;
- * - heading ids carry a prefix, so a heading can never take over an id the app's own DOM uses.
+ * - heading ids carry a prefix, so a heading can never take over an id the app's own DOM uses;
+ * - an image that is one of our uploads (`/api/uploads/<id>/…`) is drawn from the `images` map the
+ *   caller resolved for the page (srcset, size, alt text); one the map does not know — another
+ *   project's, a deleted one — shows as its alt text, and srcset can only name our own files.
  */
 import markdownIt, { type MarkdownIt, type StateCore, type Token } from 'markdown-it';
 import sanitizeHtml from 'sanitize-html';
@@ -30,9 +33,26 @@ export interface RenderedMarkdown {
   toc: TocEntry[];
 }
 
+/** An uploaded photo as the page shows it (api/uploads/images.ts builds these). */
+export interface MarkdownImage {
+  /** App-relative URL of the file to show. */
+  src: string;
+  srcset: string | null;
+  sizes: string | null;
+  width: number | null;
+  height: number | null;
+  /** The upload's alt text, used when the Markdown gives none. */
+  alt: string;
+}
+
 export interface RenderOptions {
   /** Prefix of every heading id; defaults to `h-`. */
   idPrefix?: string;
+  /**
+   * Uploads the page may show, by upload id (decimal string). Given, every image pointing at
+   * `/api/uploads/<id>/…` is resolved through it; without it such images are left as written.
+   */
+  images?: ReadonlyMap<string, MarkdownImage>;
 }
 
 // --- link policy -----------------------------------------------------------------------------
@@ -109,6 +129,7 @@ interface DocumentState {
   /** Next suffix to try per base id, so thousands of equal headings stay linear. */
   nextSuffix: Map<string, number>;
   toc: TocEntry[];
+  images?: ReadonlyMap<string, MarkdownImage>;
 }
 
 function documentOf(state: StateCore): DocumentState | undefined {
@@ -173,6 +194,56 @@ function withImagePolicy(children: Token[]): Token[] {
 function imagePolicy(state: StateCore): void {
   for (const token of state.tokens) {
     if (token.type === 'inline' && token.children) token.children = withImagePolicy(token.children);
+  }
+}
+
+/** An app path to one of our uploaded files: `/api/uploads/<id>/<name>.<ext>`. */
+export const UPLOAD_FILE_URL = /^\/api\/uploads\/(\d{1,9})\/[a-z]+\.[a-z0-9]+$/;
+
+function withUploadedImages(children: Token[], images: ReadonlyMap<string, MarkdownImage>, state: StateCore): Token[] {
+  const result: Token[] = [];
+  for (const child of children) {
+    if (child.type !== 'image') {
+      result.push(child);
+      continue;
+    }
+    const alt = withUploadedImages(child.children ?? [], images, state);
+    const id = UPLOAD_FILE_URL.exec(String(child.attrGet('src') ?? ''))?.[1];
+    if (id === undefined) {
+      child.children = alt;
+      result.push(child);
+      continue;
+    }
+    const image = images.get(id);
+    if (!image || !UPLOAD_FILE_URL.test(image.src)) {
+      // Not an upload this page may show: the reader gets the words, and no request is made.
+      result.push(...alt);
+      continue;
+    }
+    child.attrSet('src', image.src);
+    if (image.srcset) child.attrSet('srcset', image.srcset);
+    if (image.srcset && image.sizes) child.attrSet('sizes', image.sizes);
+    if (image.width) child.attrSet('width', String(image.width));
+    if (image.height) child.attrSet('height', String(image.height));
+    child.attrSet('loading', 'lazy');
+    child.attrSet('decoding', 'async');
+    if (!collapse(textOf(alt)) && image.alt) {
+      const text = new state.Token('text', '', 0);
+      text.content = image.alt;
+      child.children = [text];
+    } else {
+      child.children = alt;
+    }
+    result.push(child);
+  }
+  return result;
+}
+
+function uploadedImages(state: StateCore): void {
+  const images = documentOf(state)?.images;
+  if (!images) return;
+  for (const token of state.tokens) {
+    if (token.type === 'inline' && token.children) token.children = withUploadedImages(token.children, images, state);
   }
 }
 
@@ -266,6 +337,7 @@ export function createMarkdownIt(): MarkdownIt {
   md.core.ruler.before('inline', 'task_markers', taskMarkers);
   md.core.ruler.after('inline', 'task_checkboxes', taskCheckboxes);
   md.core.ruler.push('image_policy', imagePolicy);
+  md.core.ruler.push('uploaded_images', uploadedImages);
   md.core.ruler.push('table_alignment', tableAlignment);
   md.core.ruler.push('heading_ids', headingIds);
 
@@ -321,7 +393,17 @@ const BASE_OPTIONS: sanitizeHtml.IOptions = {
   allowedAttributes: {
     ...Object.fromEntries(HEADINGS.map((tag) => [tag, ['id']])),
     a: ['href', 'title', 'rel'],
-    img: ['src', 'alt', 'title', 'width', 'height'],
+    img: [
+      'src',
+      'alt',
+      'title',
+      'width',
+      'height',
+      'srcset',
+      'sizes',
+      { name: 'loading', multiple: false, values: ['lazy'] },
+      { name: 'decoding', multiple: false, values: ['async'] },
+    ],
     ol: ['start'],
     li: [{ name: 'data-checked', multiple: false, values: ['true', 'false'] }],
     input: ['type', 'checked', 'disabled'],
@@ -343,6 +425,24 @@ const BASE_OPTIONS: sanitizeHtml.IOptions = {
 
 const ID_CHARS = /^[\p{L}\p{N}_-]+$/u;
 
+// What the renderer itself writes into srcset and sizes, and nothing else: srcset names only our
+// uploaded files (app paths, never another host), sizes is one media condition and two lengths.
+const SRCSET_CANDIDATE = '/api/uploads/\\d{1,9}/[a-z]+\\.[a-z0-9]+ \\d{1,5}w';
+const SRCSET = new RegExp(`^${SRCSET_CANDIDATE}(?:, ${SRCSET_CANDIDATE})*$`);
+const SIZES = /^\((?:max|min)-width: \d{1,5}px\) \d{1,3}vw, \d{1,5}px$/;
+const DIMENSION = /^\d{1,5}$/;
+
+const imageTransform: sanitizeHtml.Transformer = (tagName, attribs) => {
+  const kept: sanitizeHtml.Attributes = { ...attribs };
+  if (kept.srcset !== undefined && !SRCSET.test(kept.srcset)) delete kept.srcset;
+  if (kept.sizes !== undefined && (!SIZES.test(kept.sizes) || kept.srcset === undefined)) delete kept.sizes;
+  for (const name of ['width', 'height'] as const)
+    if (kept[name] !== undefined && !DIMENSION.test(kept[name])) delete kept[name];
+  if (kept.loading !== undefined && kept.loading !== 'lazy') delete kept.loading;
+  if (kept.decoding !== undefined && kept.decoding !== 'async') delete kept.decoding;
+  return { tagName, attribs: kept };
+};
+
 function optionsFor(idPrefix: string): sanitizeHtml.IOptions {
   const heading: sanitizeHtml.Transformer = (tagName, attribs) => {
     const id = attribs.id;
@@ -358,6 +458,7 @@ function optionsFor(idPrefix: string): sanitizeHtml.IOptions {
       // Every link gets the same rel, whatever came before: user content earns no ranking and
       // gets no handle on this window.
       a: sanitizeHtml.simpleTransform('a', { rel: LINK_REL }),
+      img: imageTransform,
       // The only input the renderer makes is a read-only checkbox; any other kind is a form field.
       input: (tagName, attribs) => ({
         tagName,
@@ -396,7 +497,13 @@ export function renderMarkdown(markdown: string, options: RenderOptions = {}): R
   const idPrefix = options.idPrefix ?? DEFAULT_ID_PREFIX;
   // The prefix is ours, not the author's; a bad one is a programming error.
   if (!ID_PREFIX.test(idPrefix)) throw new TypeError(`Invalid heading id prefix: ${JSON.stringify(idPrefix)}`);
-  const doc: DocumentState = { idPrefix, usedIds: new Set(), nextSuffix: new Map(), toc: [] };
+  const doc: DocumentState = {
+    idPrefix,
+    usedIds: new Set(),
+    nextSuffix: new Map(),
+    toc: [],
+    ...(options.images ? { images: options.images } : {}),
+  };
   const html = sanitizeRendered(md.render(markdown, { [DOCUMENT]: doc }), idPrefix);
   return { html, toc: doc.toc };
 }
@@ -414,4 +521,20 @@ export function plainTextOf(markdown: string): string {
     if (line) blocks.push(line);
   }
   return blocks.join('\n');
+}
+
+/** Every image source and link target in a document, with each image's alt text (for upload references). */
+export function linkTargetsOf(markdown: string): { images: { src: string; alt: string }[]; links: string[] } {
+  assertWithinLimit(markdown);
+  const found = { images: [] as { src: string; alt: string }[], links: [] as string[] };
+  const visit = (tokens: readonly Token[]) => {
+    for (const token of tokens) {
+      if (token.type === 'image')
+        found.images.push({ src: String(token.attrGet('src') ?? ''), alt: collapse(textOf(token.children ?? [])) });
+      else if (token.type === 'link_open') found.links.push(String(token.attrGet('href') ?? ''));
+      if (token.children) visit(token.children);
+    }
+  };
+  visit(md.parse(markdown, {}));
+  return found;
 }

@@ -30,6 +30,11 @@ import * as q from './queries';
 import type { ProjectRow } from './queries';
 import { insertDocumentWithRevision } from '../documents/queries';
 import { errataNamingBoard } from '../errata/queries';
+import { missingAltText } from '../uploads/alt-text';
+import { imagesForMarkdown, type ImageMap } from '../uploads/images';
+import { toCover, type UploadRow } from '../uploads/present';
+import { coversOf } from '../uploads/queries';
+import { syncUploadRefs } from '../uploads/refs';
 
 export const PAGE_SIZE = 24;
 /** Deleted projects can be restored by an admin for this long, then they are purged. */
@@ -38,7 +43,7 @@ export const STANDARD_SECTIONS = ['Overview', 'Hardware', 'Firmware', 'Postmorte
 
 const iso = (d: Date | null) => (d ? d.toISOString() : null);
 
-function toCard(row: q.CardRow, myRole: ProjectRole | null): ProjectCard {
+function toCard(row: q.CardRow, myRole: ProjectRole | null, cover: UploadRow | undefined): ProjectCard {
   return {
     slug: row.slug,
     title: row.title,
@@ -49,17 +54,31 @@ function toCard(row: q.CardRow, myRole: ProjectRole | null): ProjectCard {
     updatedAt: row.updatedAt.toISOString(),
     publishedAt: iso(row.publishedAt),
     myRole,
+    cover: toCover(cover),
   };
 }
 
 export async function listPublishedProjects(ctx: AppContext, page: number): Promise<ProjectList> {
   const { rows, total } = await q.listPublished(ctx.db, PAGE_SIZE, (page - 1) * PAGE_SIZE);
-  return { items: rows.map((r) => toCard(r, null)), total, page, pageSize: PAGE_SIZE };
+  const covers = await coversOf(
+    ctx.db,
+    rows.map((r) => r.id),
+  );
+  return { items: rows.map((r) => toCard(r, null, covers.get(r.id))), total, page, pageSize: PAGE_SIZE };
 }
 
 export async function listMyProjects(ctx: AppContext, user: AuthUser): Promise<ProjectList> {
   const rows = await q.listMemberProjects(ctx.db, user.id);
-  return { items: rows.map((r) => toCard(r, r.myRole)), total: rows.length, page: 1, pageSize: rows.length };
+  const covers = await coversOf(
+    ctx.db,
+    rows.map((r) => r.id),
+  );
+  return {
+    items: rows.map((r) => toCard(r, r.myRole, covers.get(r.id))),
+    total: rows.length,
+    page: 1,
+    pageSize: rows.length,
+  };
 }
 
 export function metaFieldsOf(project: ProjectRow): ProjectMetaFields {
@@ -145,19 +164,27 @@ async function freeSlug(ctx: AppContext, slug: string): Promise<string> {
   return `${slug.slice(0, 70)}-${Date.now().toString(36)}`;
 }
 
-export function toBoardRevision(row: Awaited<ReturnType<typeof q.listBoardRevisions>>[number]): BoardRevision {
+/** `images`: the photos the notes may show (api/uploads/images.ts). */
+export function toBoardRevision(
+  row: Awaited<ReturnType<typeof q.listBoardRevisions>>[number],
+  images?: ImageMap,
+): BoardRevision {
   return {
     id: row.id,
     label: row.label,
     releasedOn: row.releasedOn,
     notes: row.notes,
-    notesHtml: renderCached(`board:${row.id}`, row.notes, 'bn').html,
+    notesHtml: renderCached(`board:${row.id}`, row.notes, 'bn', images).html,
     position: row.position,
   };
 }
 
-export function toDocumentSummary(doc: Awaited<ReturnType<typeof q.listLiveDocuments>>[number]): DocumentSummary {
-  const rendered = renderCached(`doc:${doc.id}:${doc.currentRevision}`, doc.body, `d${doc.id}-`);
+/** `images`: the photos the text may show (api/uploads/images.ts). */
+export function toDocumentSummary(
+  doc: Awaited<ReturnType<typeof q.listLiveDocuments>>[number],
+  images?: ImageMap,
+): DocumentSummary {
+  const rendered = renderCached(`doc:${doc.id}:${doc.currentRevision}`, doc.body, `d${doc.id}-`, images);
   return {
     id: doc.id,
     kind: doc.kind,
@@ -209,6 +236,10 @@ async function loadProjectDetail(ctx: AppContext, project: ProjectRow): Promise<
     q.listLiveDocuments(ctx.db, project.id),
   ]);
   if (!owner) throw new Error(`project ${project.id} has no owner row`);
+  const [images, covers] = await Promise.all([
+    imagesForMarkdown(ctx.db, [...docs.map((d) => d.body), ...boards.map((b) => b.notes)], project.id),
+    project.coverUploadId !== null ? coversOf(ctx.db, [project.id]) : new Map<number, UploadRow>(),
+  ]);
   const sections = docs.filter((d) => d.kind === 'section').sort((a, b) => a.position - b.position || a.id - b.id);
   const logEntries = docs
     .filter((d) => d.kind === 'log_entry')
@@ -221,12 +252,13 @@ async function loadProjectDetail(ctx: AppContext, project: ProjectRow): Promise<
     revision: project.currentRevision,
     owner,
     members,
-    boardRevisions: boards.map(toBoardRevision),
-    sections: sections.map(toDocumentSummary),
-    logEntries: logEntries.map(toDocumentSummary),
+    boardRevisions: boards.map((b) => toBoardRevision(b, images)),
+    sections: sections.map((d) => toDocumentSummary(d, images)),
+    logEntries: logEntries.map((d) => toDocumentSummary(d, images)),
     createdAt: project.createdAt.toISOString(),
     updatedAt: project.updatedAt.toISOString(),
     publishedAt: iso(project.publishedAt),
+    cover: toCover(covers.get(project.id)),
   };
 }
 
@@ -287,6 +319,18 @@ export async function setPublished(
   role: ProjectRole | null,
   published: boolean,
 ): Promise<ProjectDetail> {
+  if (published) {
+    // Every photo the project shows must say what it shows before anyone else can read it.
+    const missing = await missingAltText(ctx, project);
+    if (missing) {
+      const count = missing.images.length;
+      throw new AppError(
+        'validation_failed',
+        `${count === 1 ? 'One photo needs' : `${count} photos need`} alt text before the project can be published: describe ${count === 1 ? 'it' : 'each'} for readers who cannot see it.`,
+        missing,
+      );
+    }
+  }
   await q.setStatus(ctx.db, project.id, published ? 'published' : 'draft');
   return projectDetail(ctx, await reload(ctx, project), role);
 }
@@ -369,17 +413,29 @@ export async function removeEditor(ctx: AppContext, owner: AuthUser, project: Pr
 
 // --- board revisions -----------------------------------------------------------------------
 
+async function presentBoard(
+  ctx: AppContext,
+  project: ProjectRow,
+  row: Awaited<ReturnType<typeof q.listBoardRevisions>>[number],
+) {
+  return toBoardRevision(row, await imagesForMarkdown(ctx.db, [row.notes], project.id));
+}
+
 export async function addBoardRevision(ctx: AppContext, project: ProjectRow, input: Required<BoardRevisionInput>): Promise<BoardRevision> {
   try {
-    const row = await q.insertBoardRevision(ctx.db, {
-      projectId: project.id,
-      label: input.label,
-      releasedOn: input.releasedOn,
-      notes: input.notes,
-      position: await q.nextBoardPosition(ctx.db, project.id),
+    const row = await ctx.db.transaction(async (tx) => {
+      const created = await q.insertBoardRevision(tx, {
+        projectId: project.id,
+        label: input.label,
+        releasedOn: input.releasedOn,
+        notes: input.notes,
+        position: await q.nextBoardPosition(tx, project.id),
+      });
+      await syncUploadRefs(tx, 'board_revision', created.id, project.id, [created.notes]);
+      await q.touchProject(tx, project.id);
+      return created;
     });
-    await q.touchProject(ctx.db, project.id);
-    return toBoardRevision(row);
+    return presentBoard(ctx, project, row);
   } catch (error) {
     if (isUniqueViolation(error, 'board_revisions_label_key')) throw fail.conflict(`This project already has a board revision "${input.label}".`);
     throw error;
@@ -393,10 +449,14 @@ export async function updateBoardRevision(
   input: Required<BoardRevisionInput>,
 ): Promise<BoardRevision> {
   try {
-    const row = await q.updateBoardRevision(ctx.db, project.id, id, input);
-    if (!row) throw fail.notFound('The board revision');
-    await q.touchProject(ctx.db, project.id);
-    return toBoardRevision(row);
+    const row = await ctx.db.transaction(async (tx) => {
+      const updated = await q.updateBoardRevision(tx, project.id, id, input);
+      if (!updated) throw fail.notFound('The board revision');
+      await syncUploadRefs(tx, 'board_revision', updated.id, project.id, [updated.notes]);
+      await q.touchProject(tx, project.id);
+      return updated;
+    });
+    return presentBoard(ctx, project, row);
   } catch (error) {
     if (isUniqueViolation(error, 'board_revisions_label_key')) throw fail.conflict(`This project already has a board revision "${input.label}".`);
     throw error;
@@ -409,8 +469,11 @@ export async function removeBoardRevision(ctx: AppContext, project: ProjectRow, 
   if (naming.length) {
     throw fail.conflict(`This board revision is named in ${naming.map((n) => `E${n}`).join(', ')}. Change those errata first.`);
   }
-  if (!(await q.deleteBoardRevision(ctx.db, project.id, id))) throw fail.notFound('The board revision');
-  await q.touchProject(ctx.db, project.id);
+  await ctx.db.transaction(async (tx) => {
+    if (!(await q.deleteBoardRevision(tx, project.id, id))) throw fail.notFound('The board revision');
+    await syncUploadRefs(tx, 'board_revision', id, project.id, []);
+    await q.touchProject(tx, project.id);
+  });
 }
 
 // --- metadata history -----------------------------------------------------------------------

@@ -46,6 +46,7 @@ import { findProjectById, memberRole, touchProject, type ProjectRow } from '../p
 import { findRevision } from '../revisions/queries';
 import { saveVersioned } from '../revisions/versioned';
 import { excerptOf, insertComment, threadParticipants } from '../comments/service';
+import { syncUploadRefs } from '../uploads/refs';
 
 type ProposalRow = typeof proposals.$inferSelect;
 
@@ -190,6 +191,14 @@ export async function myProposals(ctx: AppContext, user: AuthUser): Promise<Prop
 
 // --- creating -------------------------------------------------------------------------------
 
+/** The Markdown fields of a proposal's payload (an erratum's texts, or a document's body). */
+function markdownOfPayload(payload: unknown): string[] {
+  const fields = (payload ?? {}) as Record<string, unknown>;
+  return ['body', 'symptom', 'cause', 'workaround', 'fix']
+    .map((name) => fields[name])
+    .filter((value): value is string => typeof value === 'string');
+}
+
 const proposalPath = (id: number) => `/proposals/${id}`;
 
 export async function createProposal(
@@ -238,6 +247,8 @@ export async function createProposal(
   }
   const id = await withNotifications(ctx, async (tx, collect) => {
     const [row] = await tx.insert(proposals).values(values).returning({ id: proposals.id });
+    // A photo the proposed text shows stays while the proposal is open, so accepting it later finds it.
+    await syncUploadRefs(tx, 'proposal', row!.id, project.id, markdownOfPayload(values.payload));
     const payload: NotificationPayload = {
       projectSlug: project.slug,
       projectTitle: project.title,
@@ -378,7 +389,11 @@ async function transition(
     .set({ status: to, decidedBy: by.id, decidedAt: new Date(), decisionReason: reason, updatedAt: new Date() })
     .where(and(eq(proposals.id, id), eq(proposals.status, 'open')))
     .returning();
-  if (row) return row;
+  if (row) {
+    // Decided: what it proposed now lives (or not) in its target, which holds its own references.
+    await syncUploadRefs(tx, 'proposal', row.id, row.projectId, []);
+    return row;
+  }
   const [current] = await tx
     .select({ status: proposals.status, handle: users.handle })
     .from(proposals)

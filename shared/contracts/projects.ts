@@ -105,6 +105,20 @@ export type BoardRevisionInput = z.input<typeof boardRevisionInputSchema>;
 
 export const boardRevisionParamsSchema = z.strictObject({ slug: slugSchema, boardId: z.coerce.number().int().min(1) });
 
+/** The cover photo, ready for an `<img>` (a photo of the project chosen in its gallery). */
+export const projectCoverSchema = z
+  .object({
+    /** The page-width WebP variant. */
+    url: z.string(),
+    srcset: z.string(),
+    sizes: z.string(),
+    width: z.number().int(),
+    height: z.number().int(),
+    altText: z.string(),
+  })
+  .meta({ id: 'ProjectCover' });
+export type ProjectCover = z.infer<typeof projectCoverSchema>;
+
 export const projectCardSchema = z
   .object({
     slug: z.string(),
@@ -117,6 +131,7 @@ export const projectCardSchema = z
     publishedAt: z.string().nullable(),
     /** The viewer's role on the project, when they have one. */
     myRole: z.enum(projectRoles).nullable(),
+    cover: projectCoverSchema.nullable(),
   })
   .meta({ id: 'ProjectCard' });
 export type ProjectCard = z.infer<typeof projectCardSchema>;
@@ -169,6 +184,7 @@ export const projectDetailSchema = z
     createdAt: z.string(),
     updatedAt: z.string(),
     publishedAt: z.string().nullable(),
+    cover: projectCoverSchema.nullable(),
     viewer: viewerPermissionsSchema,
   })
   .meta({ id: 'ProjectDetail' });

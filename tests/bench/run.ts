@@ -7,6 +7,7 @@ import os from 'node:os';
 const suites: Record<string, () => Promise<{ run(seconds: number): Promise<string[]> }>> = {
   http: () => import('./http.bench'),
   writeups: () => import('./writeups.bench'),
+  uploads: () => import('./uploads.bench'),
 };
 
 const wanted = process.argv.slice(2);

@@ -9,6 +9,7 @@ import { fakeGithubEndpoints } from '../../api/fakes/github';
 import { createJobs } from '../../api/jobs/queue';
 import { createLogger } from '../../api/log';
 import { createMailer } from '../../api/mail/mailer';
+import { createStorage } from '../../api/storage/storage';
 import { createProject } from '../../api/projects/service';
 import { findProjectBySlug } from '../../api/projects/queries';
 import { toAuthUser } from '../../api/users/service';
@@ -41,6 +42,8 @@ export async function run(seconds: number): Promise<string[]> {
     log: createLogger('silent'),
     github: fakeGithubEndpoints('http://127.0.0.1:9', 'bench', 'bench'),
     mail: createMailer(config),
+    // Never written to here: no benchmark in this file uploads.
+    storage: createStorage(config),
   };
   // The benchmarks send no mail: the queue is never started, and enqueueing would throw.
   const ctx: AppContext = { ...base, jobs: createJobs(base, { workers: false }) };

@@ -2,6 +2,9 @@
  * Builds the real app against a test file's own database and a real fake provider on
  * loopback, and signs members in through the real OAuth flow (no shortcut into sessions).
  */
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
 import request from 'supertest';
 import type TestAgent from 'supertest/lib/agent';
 import { expect } from 'vitest';
@@ -14,6 +17,7 @@ import { createJobs } from '../../api/jobs/queue';
 import { createLogger } from '../../api/log';
 import { createMailer } from '../../api/mail/mailer';
 import { FAKE_CLIENT } from '../../api/server';
+import { createStorage } from '../../api/storage/storage';
 import { seedDemoIfEmpty } from '../../db/seed';
 import { createTestDatabase, type TestDatabase } from './db';
 
@@ -55,11 +59,14 @@ export async function createTestApp(
   } = {},
 ): Promise<TestApp> {
   const database = options.database ?? (await createTestDatabase());
+  // Each app stores its uploads in its own temporary folder unless the test names one.
+  const uploadsDir = options.env?.UPLOADS_DIR ? undefined : fs.mkdtempSync(path.join(os.tmpdir(), 'rwb-test-uploads-'));
   const config = loadConfig({
     NODE_ENV: 'test',
     APP_ORIGIN: TEST_ORIGIN,
     LOG_LEVEL: 'silent',
     SIGN_IN_RATE_PER_MINUTE: '1000',
+    ...(uploadsDir ? { UPLOADS_DIR: uploadsDir } : {}),
     ...options.env,
   });
   if (options.seed !== false) await seedDemoIfEmpty(database.db);
@@ -78,6 +85,7 @@ export async function createTestApp(
     github: fakeGithubEndpoints(fake.url, FAKE_CLIENT.id, FAKE_CLIENT.secret),
     mail: createMailer(config, outbox.url),
     outbox,
+    storage: createStorage(config),
   };
   // Schedules stay off (tests call the handlers); retries come quickly so outages are short.
   const jobs = createJobs(base, {
@@ -133,7 +141,9 @@ export async function createTestApp(
       await jobs.stop();
       await outbox.close();
       await fake.close();
+      base.storage.close?.();
       if (!options.database) await database.drop();
+      if (uploadsDir) fs.rmSync(uploadsDir, { recursive: true, force: true });
     },
   };
 }

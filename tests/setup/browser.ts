@@ -3,6 +3,9 @@
  * provider, job workers and the local mail capture) driven by Debian's Chromium through playwright-core. A console error or an
  * uncaught page error fails the test.
  */
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
 import { chromium, type Browser, type BrowserContext, type Page } from 'playwright-core';
 import { expect } from 'vitest';
 import { loadConfig } from '../../api/config';
@@ -27,7 +30,10 @@ export async function startProduct(env: Record<string, string> = {}): Promise<Pr
   const database = await createTestDatabase();
   const port = await freePort();
   const origin = `http://localhost:${port}`;
+  // Uploaded files go to a folder of this run, never the repository's uploads/.
+  const uploadsDir = fs.mkdtempSync(path.join(os.tmpdir(), 'rwb-e2e-uploads-'));
   const config = loadConfig({
+    UPLOADS_DIR: uploadsDir,
     NODE_ENV: 'test',
     PORT: String(port),
     APP_ORIGIN: origin,
@@ -72,6 +78,7 @@ export async function startProduct(env: Record<string, string> = {}): Promise<Pr
       await browser.close();
       await server.stop();
       await database.drop();
+      fs.rmSync(uploadsDir, { recursive: true, force: true });
     },
   };
 }
