@@ -50,6 +50,8 @@ const envSchema = z
     SESSION_ABSOLUTE_HOURS: z.coerce.number().int().min(1).default(24 * 30),
     JSON_BODY_LIMIT: z.string().regex(/^\d+(b|kb|mb)$/i, 'a size such as 512kb or 1mb').default('1mb'),
     SIGN_IN_RATE_PER_MINUTE: z.coerce.number().int().min(1).default(20),
+    /** Searches per minute per client address (the top bar searches as you type). */
+    SEARCH_RATE_PER_MINUTE: z.coerce.number().int().min(1).default(600),
 
     GITHUB_CLIENT_ID: optionalText,
     GITHUB_CLIENT_SECRET: optionalText,

@@ -19,6 +19,8 @@ import { createJobs, type JobsOptions } from './jobs/queue';
 import { createLogger, type Logger } from './log';
 import { createMailer } from './mail/mailer';
 import { startMaintenance } from './maintenance';
+import { startSearchIndexer } from './search/indexer';
+import { createSearchBackend } from './search/meilisearch';
 import { createStorage } from './storage/storage';
 import { reconcileUploads } from './uploads/jobs';
 
@@ -111,7 +113,10 @@ export async function startServer(config: Config, options: StartOptions = {}): P
     await jobs.start();
     // Stops before the mail capture and the database (stops run in reverse): running jobs finish first.
     stops.push(() => jobs.stop());
-    const ctx: AppContext = { ...base, jobs };
+    // Meilisearch answers searches when configured; PostgreSQL's index is kept either way.
+    const secondary = createSearchBackend(config);
+    if (secondary) log.info(`Searches answered by Meilisearch at ${config.MEILISEARCH_URL} (fill it with npm run search:reindex)`);
+    const ctx: AppContext = { ...base, jobs, ...(secondary ? { searchBackend: secondary } : {}) };
     // Storage and rows back in step (and lost variant jobs queued again) before any request.
     try {
       await reconcileUploads(ctx);
@@ -119,6 +124,8 @@ export async function startServer(config: Config, options: StartOptions = {}): P
       throw new Error(`Uploaded files could not be checked in ${storage.description}: ${(error as Error).message}`, { cause: error });
     }
     stops.push(startMaintenance(ctx));
+    // Changes reach the search index through the outbox, about a second after they commit.
+    stops.push(startSearchIndexer(ctx, secondary));
     const { app } = createApp(ctx, options.clientDir ? { clientDir: options.clientDir } : {});
     const server = await new Promise<Server>((resolve, reject) => {
       const s = app.listen(config.PORT, config.HOST, () => resolve(s));

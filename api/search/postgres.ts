@@ -26,10 +26,10 @@ export const TITLE_CANDIDATES = 500;
 /** Bodies are kept whole in the tsvector; the stored copy only feeds snippets. */
 const SNIPPET_SOURCE_CHARS = 20_000;
 const UPSERT_BATCH = 200;
-const MARK_OPEN = '\u0001';
-const MARK_CLOSE = '\u0002';
+export const MARK_OPEN = '\u0001';
+export const MARK_CLOSE = '\u0002';
 
-const escapeHtml = (s: string) =>
+export const escapeHtml = (s: string) =>
   s.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!);
 /** Escapes everything, then turns the markers ts_headline put around matches into <mark>. */
 export function markedHtml(text: string): string {
@@ -260,6 +260,7 @@ export class PostgresSearch implements SearchBackend {
 
   async search(query: SearchQuery, viewer: SearchViewer): Promise<SearchResult> {
     const first = await this.run(query, viewer, query.q);
+    if (query.exact) return first;
     if (first.total.value > 0 && first.total.value < query.pageSize && query.page === 1) return this.widen(query, viewer, first);
     if (first.total.value > 0 || !query.q.trim()) return first;
     // Nothing matched: try the closest known words for likely typos ("atmaga328" → atmega328p).
@@ -292,6 +293,7 @@ export class PostgresSearch implements SearchBackend {
     rows.sort((a, b) => b.rank - a.rank || +new Date(b.updated_at) - +new Date(a.updated_at) || b.id - a.id);
     const start = (query.page - 1) * query.pageSize;
     const pageRows = rows.slice(start, start + query.pageSize);
+    const labels = await this.facetLabels(rows);
     const highlights = pageRows.length
       ? await this.highlight(
           pageRows.map((r) => r.id),
@@ -322,7 +324,7 @@ export class PostgresSearch implements SearchBackend {
           rows.map((r) => r.kind),
           (v) => searchKindLabels[v as SearchHit['kind']] ?? v,
         ),
-        category: facet(rows.map((r) => r.category)),
+        category: facet(rows.map((r) => r.category), (v) => labels.categories.get(v) ?? v),
         severity: facet(
           rows.map((r) => r.severity),
           (v) => severityLabels[v as Severity]?.split(' —')[0] ?? v,
@@ -331,7 +333,7 @@ export class PostgresSearch implements SearchBackend {
           rows.map((r) => r.status),
           (v) => erratumStatusLabels[v as ErratumStatus] ?? v,
         ),
-        tag: facet(rows.flatMap((r) => r.tags)),
+        tag: facet(rows.flatMap((r) => r.tags), (v) => labels.tags.get(v) ?? v),
         part: facet(rows.flatMap((r) => r.parts)),
         project: facet(
           rows.map((r) => r.project_slug),
@@ -340,6 +342,18 @@ export class PostgresSearch implements SearchBackend {
       },
       facetsApproximate: capped,
     };
+  }
+
+  /** Display names of the categories and tags the facets list. */
+  private async facetLabels(rows: CandidateRow[]): Promise<{ categories: Map<string, string>; tags: Map<string, string> }> {
+    const tagSlugs = [...new Set(rows.flatMap((r) => r.tags))];
+    const [cats, tagRows] = await Promise.all([
+      this.db.execute<{ slug: string; name: string }>(sql`SELECT slug, name FROM categories`),
+      tagSlugs.length
+        ? this.db.execute<{ slug: string; name: string }>(sql`SELECT slug, name FROM tags WHERE slug IN (SELECT jsonb_array_elements_text(${JSON.stringify(tagSlugs)}::jsonb))`)
+        : Promise.resolve({ rows: [] as { slug: string; name: string }[] }),
+    ]);
+    return { categories: new Map(cats.rows.map((c) => [c.slug, c.name])), tags: new Map(tagRows.rows.map((t) => [t.slug, t.name])) };
   }
 
   /**
@@ -352,10 +366,13 @@ export class PostgresSearch implements SearchBackend {
     const loose = await this.run(query, viewer, words.join(' OR '));
     const seen = new Set(strict.items.map((i) => `${i.kind}:${i.id}`));
     const extra = loose.items.filter((i) => !seen.has(`${i.kind}:${i.id}`));
+    // The widened set contains the strict one: its total and facets describe what is listed.
     return {
       ...strict,
       items: [...strict.items, ...extra].slice(0, query.pageSize),
-      total: { value: strict.total.value + Math.max(0, loose.total.value - strict.total.value), exact: loose.total.exact },
+      total: loose.total,
+      facets: loose.facets,
+      facetsApproximate: loose.facetsApproximate,
     };
   }
 

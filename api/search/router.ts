@@ -5,7 +5,7 @@ import { rateLimit } from '../middleware/rate-limit';
 import { search } from './service';
 
 export function registerSearchRoutes(routes: ApiRoutes, ctx: AppContext) {
-  const searches = rateLimit(ctx, { name: 'search', points: 600, durationSeconds: 60 });
+  const searches = rateLimit(ctx, { name: 'search', points: ctx.config.SEARCH_RATE_PER_MINUTE, durationSeconds: 60 });
   routes.get(
     '/search',
     {

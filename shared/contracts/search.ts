@@ -38,6 +38,11 @@ export const searchQuerySchema = z.strictObject({
     .enum(['1', 'true', '0', 'false'])
     .optional()
     .transform((v) => v === '1' || v === 'true'),
+  /** Search the words exactly as typed: no typo correction, no widening to partial matches. */
+  exact: z
+    .enum(['1', 'true', '0', 'false'])
+    .optional()
+    .transform((v) => v === '1' || v === 'true'),
   page: z.coerce.number().int().min(1).max(50).default(1),
   pageSize: z.coerce.number().int().min(1).max(50).default(20),
 });

@@ -1,6 +1,6 @@
 import { sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { indexPending } from '../../api/search/indexer';
+import { indexPending, startSearchIndexer } from '../../api/search/indexer';
 import { createTestApp, type SignedInAgent, type TestApp } from '../setup/app';
 
 let t: TestApp;
@@ -49,6 +49,13 @@ describe('searching the demo data', () => {
     const res = await search('q=atmaga328');
     expect(res.correctedQuery).toMatch(/^atmega328/);
     expect(res.items.length).toBeGreaterThan(0);
+  });
+
+  it('searches the words as typed with exact=1: no correction, no widening', async () => {
+    const res = await search('q=atmaga328&exact=1');
+    expect(res.correctedQuery).toBeNull();
+    expect(res.items).toEqual([]);
+    expect(res.total).toEqual({ value: 0, exact: true });
   });
 
   it('offers suggestions, not errors, for nonsense', async () => {
@@ -110,6 +117,23 @@ describe('keeping the index current', () => {
     await owner.agent.post('/api/projects/greenhouse-vent-controller/publish').set(owner.headers).expect(200);
     await indexPending(t.ctx);
     expect((await search('q=quokka')).items.length).toBe(1);
+  });
+
+  it('finds a change without anyone draining the outbox once the server’s indexer runs', async () => {
+    const project = (await t.agent().get('/api/projects/greenhouse-vent-controller')).body;
+    const stop = startSearchIndexer(t.ctx, null, 50);
+    try {
+      await owner.agent
+        .post('/api/projects/greenhouse-vent-controller/errata')
+        .set(owner.headers)
+        .send({ title: 'Numbat-sized ground bounce', category: 'footprint-layout', severity: 'minor', status: 'open', affected: [project.boardRevisions[0].id] })
+        .expect(201);
+      await expect.poll(async () => (await search('q=numbat')).items.map((i) => i.title), { timeout: 10_000, interval: 100 }).toEqual([
+        expect.stringContaining('Numbat-sized ground bounce'),
+      ]);
+    } finally {
+      await stop();
+    }
   });
 
   it('leaves nothing in the outbox after indexing', async () => {

@@ -8,6 +8,7 @@ const suites: Record<string, () => Promise<{ run(seconds: number): Promise<strin
   http: () => import('./http.bench'),
   writeups: () => import('./writeups.bench'),
   uploads: () => import('./uploads.bench'),
+  search: () => import('./search.bench'),
 };
 
 const wanted = process.argv.slice(2);

@@ -20,7 +20,7 @@ bare.get('/json', (_req, res) => {
   res.json({ status: 'ok' });
 });
 const database = createDatabase(databaseUrl, { max: 10, log: () => {} });
-const config = loadConfig({ NODE_ENV: 'production', SESSION_SECRET: 'b'.repeat(40), APP_ORIGIN: 'http://127.0.0.1', LOG_LEVEL: 'silent' });
+const config = loadConfig({ NODE_ENV: 'production', SESSION_SECRET: 'b'.repeat(40), APP_ORIGIN: 'http://127.0.0.1', LOG_LEVEL: 'silent', SEARCH_RATE_PER_MINUTE: '1000000' });
 const base = {
   config,
   database,
