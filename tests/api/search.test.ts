@@ -136,6 +136,20 @@ describe('keeping the index current', () => {
     }
   });
 
+  it('treats a tag alias as a synonym of the tag', async () => {
+    const tagged = await t.ctx.db.execute<{ erratum_id: number; tag_id: number; title: string }>(sql`
+      SELECT et.erratum_id, et.tag_id, e.title FROM erratum_tags et
+      JOIN errata e ON e.id = et.erratum_id JOIN projects p ON p.id = e.project_id
+      WHERE p.status = 'published' AND p.deleted_at IS NULL AND e.hidden_at IS NULL ORDER BY e.id LIMIT 1`);
+    const row = tagged.rows[0]!;
+    expect((await search('q=kookaburra')).items).toEqual([]);
+    await t.ctx.db.execute(sql`INSERT INTO tag_aliases (alias, tag_id) VALUES ('kookaburra-wiring', ${row.tag_id})`);
+    await t.ctx.db.execute(sql`INSERT INTO search_outbox (kind, ref_id) VALUES ('erratum', ${row.erratum_id})`);
+    await indexPending(t.ctx);
+    const found = (await search('q=kookaburra')).items.filter((i) => i.kind === 'erratum');
+    expect(found.map((i) => i.title)).toEqual([expect.stringMatching(new RegExp(`^E\\d+ ${row.title.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')}$`))]);
+  });
+
   it('leaves nothing in the outbox after indexing', async () => {
     await indexPending(t.ctx);
     const left = await t.ctx.db.execute(sql`SELECT count(*)::int AS n FROM search_outbox`);
