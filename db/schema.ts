@@ -20,6 +20,7 @@ import {
   pgEnum,
   pgTable,
   primaryKey,
+  smallint,
   text,
   timestamp,
   uniqueIndex,
@@ -154,6 +155,8 @@ export const projects = pgTable(
     changeSeq: integer('change_seq').notNull().default(0),
     /** Erratum numbers are never reused: this counter only grows. */
     nextErratumNumber: integer('next_erratum_number').notNull().default(1),
+    /** Memory budget: a firmware build warns at or above this share of flash or RAM (percent). */
+    memoryWarnPercent: smallint('memory_warn_percent').notNull().default(90),
     publishedAt: timestamp('published_at', { withTimezone: true }),
     deletedAt: timestamp('deleted_at', { withTimezone: true }),
     deletedBy: integer('deleted_by').references(() => users.id),
@@ -222,9 +225,8 @@ export const revisions = pgTable(
     projectId: integer('project_id').references(() => projects.id, { onDelete: 'cascade' }),
     number: integer('number').notNull(),
     parentNumber: integer('parent_number'),
-    authorId: integer('author_id')
-      .notNull()
-      .references(() => users.id),
+    /** Null only for reference data the product ships (a part profile as loaded from db/parts). */
+    authorId: integer('author_id').references(() => users.id),
     /** The contributor credited when the revision came from an accepted proposal. */
     creditedUserId: integer('credited_user_id').references(() => users.id),
     proposalId: integer('proposal_id'),

@@ -1,0 +1,1 @@
+ALTER TABLE "revisions" ALTER COLUMN "author_id" DROP NOT NULL;

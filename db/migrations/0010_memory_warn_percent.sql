@@ -1,0 +1,1 @@
+ALTER TABLE "projects" ADD COLUMN "memory_warn_percent" smallint DEFAULT 90 NOT NULL;
