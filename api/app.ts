@@ -24,8 +24,15 @@ import { registerLessonRoutes } from './lessons/router';
 import { registerNotificationRoutes } from './notifications/router';
 import { registerProposalRoutes } from './proposals/router';
 import { registerTagRoutes } from './tags/router';
+import { registerFeedRoutes } from './feeds/router';
 import { registerUploadRoutes } from './uploads/router';
 import { registerSearchRoutes } from './search/router';
+import { registerFlagRoutes } from './flags/router';
+import { registerModerationRoutes } from './moderation/router';
+import { registerAuditRoutes } from './audit/router';
+import { registerPartRoutes } from './parts/router';
+import { registerPinMapRoutes } from './pin-maps/router';
+import { registerBuildRoutes } from './builds/router';
 
 export interface BuiltApp {
   app: Express;
@@ -51,10 +58,17 @@ function registerRoutes(routes: ApiRoutes, ctx: AppContext, passport: ReturnType
   registerErrataRoutes(routes, ctx);
   registerLessonRoutes(routes, ctx);
   registerTagRoutes(routes, ctx);
+  registerFeedRoutes(routes, ctx);
   registerProposalRoutes(routes, ctx);
   registerNotificationRoutes(routes, ctx);
   registerSearchRoutes(routes, ctx);
   registerUploadRoutes(routes, ctx);
+  registerFlagRoutes(routes, ctx);
+  registerModerationRoutes(routes, ctx);
+  registerAuditRoutes(routes, ctx);
+  registerPartRoutes(routes, ctx);
+  registerPinMapRoutes(routes, ctx);
+  registerBuildRoutes(routes, ctx);
 }
 
 export function createApp(ctx: AppContext, options: AppOptions = {}): BuiltApp {

@@ -10,6 +10,7 @@ import { createDatabase } from '../db/client';
 import { openEmbeddedOrConfigured } from '../db/local';
 import { migrateDatabase } from '../db/migrate';
 import { seedDemoIfEmpty } from '../db/seed';
+import { seedParts } from '../db/parts/seed';
 import { createApp } from './app';
 import { repoRoot, type Config } from './config';
 import { realGithub, type AppContext } from './context';
@@ -72,6 +73,11 @@ export async function startServer(config: Config, options: StartOptions = {}): P
     await migrateDatabase(url);
     const database = createDatabase(url, { max: config.DB_POOL_MAX, log: (m) => log.warn(m) });
     stops.push(() => database.close());
+    // Parts are reference data, needed with or without the demo.
+    const seededParts = await seedParts(database.db);
+    if (seededParts.inserted.length || seededParts.updated.length) {
+      log.info(`Parts library: ${seededParts.inserted.length} added, ${seededParts.updated.length} updated from db/parts.`);
+    }
     if (config.SEED_DEMO && (await seedDemoIfEmpty(database.db))) log.info('Demo data seeded (see README for the accounts).');
 
     let github = config.useFakeGithub ? null : realGithub(config.GITHUB_CLIENT_ID!, config.GITHUB_CLIENT_SECRET!);

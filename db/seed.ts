@@ -7,7 +7,9 @@ import { fileURLToPath } from 'node:url';
 import { count } from 'drizzle-orm';
 import type { Db } from './client';
 import { demoAccounts } from './demo/accounts';
+import { seedDemoChecks } from './demo/checks';
 import { seedDemoContent } from './demo/content';
+import { seedParts } from './parts/seed';
 import { oauthIdentities, users } from './schema';
 
 export async function seedDemoIfEmpty(db: Db): Promise<boolean> {
@@ -28,7 +30,14 @@ export async function seedDemoIfEmpty(db: Db): Promise<boolean> {
         login: account.login,
       });
     }
+    // Parts are reference data (the server seeds them at every start too); the demo links to them.
+    await seedParts(tx);
     await seedDemoContent(tx, ids);
+    await seedDemoChecks(tx, (login) => {
+      const id = ids.get(login);
+      if (id === undefined) throw new Error(`demo account ${login} missing`);
+      return id;
+    });
   });
   return true;
 }

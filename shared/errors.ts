@@ -9,6 +9,8 @@ export const errorCodes = {
   bad_request: 400,
   malformed_json: 400,
   validation_failed: 400,
+  /** A pasted GNU size report that cannot be read (the message says where). */
+  size_report_invalid: 400,
   unauthenticated: 401,
   forbidden: 403,
   csrf_failed: 403,
@@ -16,6 +18,8 @@ export const errorCodes = {
   not_found: 404,
   conflict: 409,
   edit_conflict: 409,
+  /** A project already has a pin map for that part on that board revision. */
+  pin_map_exists: 409,
   gone: 410,
   precondition_required: 428,
   payload_too_large: 413,
