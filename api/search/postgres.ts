@@ -150,18 +150,22 @@ export function candidateQuery(query: SearchQuery, viewer: SearchViewer, text: s
   const tsquery = tsqueryFor(text);
   const where = sql`${visibleTo(viewer)} AND ${filtersOf(query)}`;
   // Without words: browse the newest visible items under the filters.
-  const matchFull = tsquery ? sql`d.tsv @@ q.query` : sql`true`;
+  // The tsquery is written out where it is used, not taken from a CTE: the planner then sees
+  // the words and estimates how many rows match. A common word (most of the table) is read
+  // newest first through the updated_at index until the bound is reached; a rare one through
+  // the GIN index. Behind a CTE every query got the GIN plan, and a common word cost a bitmap
+  // scan over nearly every row.
+  const q = tsquery ? sql`(${tsquery})` : sql`''::tsquery`;
+  const matchFull = tsquery ? sql`d.tsv @@ ${q}` : sql`true`;
   // Titles must match the whole query too (an exclusion may rest on words outside the title).
-  const matchTitle = tsquery ? sql`d.title_tsv @@ q.query AND d.tsv @@ q.query` : sql`false`;
-  const rank = tsquery ? sql`ts_rank_cd('{0.1,0.2,0.4,1.0}', d.tsv, q.query)` : sql`0`;
-  const qExpr = tsquery ?? sql`''::tsquery`;
+  const matchTitle = tsquery ? sql`d.title_tsv @@ ${q} AND d.tsv @@ ${q}` : sql`false`;
+  const rank = tsquery ? sql`ts_rank_cd('{0.1,0.2,0.4,1.0}', d.tsv, ${q})` : sql`0`;
   return sql`
-      WITH q AS (SELECT ${qExpr} AS query),
-      full_hits AS (
-        SELECT d.id FROM search_docs d, q WHERE ${matchFull} AND ${where} ORDER BY d.updated_at DESC LIMIT ${CANDIDATES}
+      WITH full_hits AS (
+        SELECT d.id FROM search_docs d WHERE ${matchFull} AND ${where} ORDER BY d.updated_at DESC LIMIT ${CANDIDATES}
       ),
       title_hits AS (
-        SELECT d.id FROM search_docs d, q WHERE ${matchTitle} AND ${where} ORDER BY d.updated_at DESC LIMIT ${TITLE_CANDIDATES}
+        SELECT d.id FROM search_docs d WHERE ${matchTitle} AND ${where} ORDER BY d.updated_at DESC LIMIT ${TITLE_CANDIDATES}
       ),
       candidates AS (
         SELECT id, true AS from_full FROM full_hits
@@ -169,7 +173,7 @@ export function candidateQuery(query: SearchQuery, viewer: SearchViewer, text: s
       )
       SELECT d.id, d.kind, d.ref_id, ${rank} AS rank, d.title, d.url, d.project_slug, d.project_title, d.category,
              d.severity, d.status, d.tags, d.parts, d.pins, d.updated_at, c.from_full
-      FROM candidates c JOIN search_docs d ON d.id = c.id, q`;
+      FROM candidates c JOIN search_docs d ON d.id = c.id`;
 }
 
 export class PostgresSearch implements SearchBackend {
