@@ -24,7 +24,7 @@ import { viewerOf } from '../projects/service';
 import * as revisionQueries from '../revisions/queries';
 import { toRevisionDetail, toRevisionSummary } from '../revisions/present';
 import { contentHash, saveVersioned, type VersionedStore } from '../revisions/versioned';
-import { resolveTagIds, tagRefsByIds } from '../tags/service';
+import { currentTagIds, resolveTagIds, tagRefsByIds } from '../tags/service';
 import { imagesForMarkdown, type ImageMap } from '../uploads/images';
 import { syncUploadRefs } from '../uploads/refs';
 import * as q from './queries';
@@ -393,14 +393,23 @@ export async function saveErratum(
     },
     // Tags change in the same transaction as the revision they were saved with.
     async (tx) => {
-      if (options.tags) await q.setErratumTags(tx, row.id, await resolveTagIds(tx, user, options.tags));
+      if (options.tags)
+        await q.setErratumTags(
+          tx,
+          row.id,
+          await resolveTagIds(tx, user, options.tags, await currentTagIds(tx, 'erratum', row.id)),
+        );
       await touchProject(tx, project.id);
     },
   );
   if (options.tags && result.outcome === 'unchanged') {
     // No new revision, but the tags may still have changed: their own small transaction.
     await ctx.db.transaction(async (tx) => {
-      await q.setErratumTags(tx, row.id, await resolveTagIds(tx, user, options.tags!));
+      await q.setErratumTags(
+        tx,
+        row.id,
+        await resolveTagIds(tx, user, options.tags!, await currentTagIds(tx, 'erratum', row.id)),
+      );
       await touchProject(tx, project.id);
     });
   }

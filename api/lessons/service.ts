@@ -18,7 +18,7 @@ import { touchProject } from '../projects/queries';
 import { viewerOf } from '../projects/service';
 import { insertRevision } from '../revisions/queries';
 import { contentHash, saveVersioned, type SaveResult, type VersionedStore } from '../revisions/versioned';
-import { resolveTagIds, tagRefsByIds } from '../tags/service';
+import { currentTagIds, resolveTagIds, tagRefsByIds } from '../tags/service';
 import { imagesForMarkdown } from '../uploads/images';
 import { syncUploadRefs } from '../uploads/refs';
 
@@ -213,13 +213,13 @@ export async function saveLesson(
       origin: 'edit',
     },
     async (tx) => {
-      await setTags(tx, row.id, await resolveTagIds(tx, user, parsed.tags));
+      await setTags(tx, row.id, await resolveTagIds(tx, user, parsed.tags, await currentTagIds(tx, 'lesson', row.id)));
       await touchProject(tx, project.id);
     },
   );
   if (result.outcome === 'unchanged') {
     await ctx.db.transaction(async (tx) => {
-      await setTags(tx, row.id, await resolveTagIds(tx, user, parsed.tags));
+      await setTags(tx, row.id, await resolveTagIds(tx, user, parsed.tags, await currentTagIds(tx, 'lesson', row.id)));
       await touchProject(tx, project.id);
     });
   }
