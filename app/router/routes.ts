@@ -150,6 +150,14 @@ export const routes = [
     component: () => import('@/pages/NotificationSettingsPage.vue'),
     meta: { requires: 'signed-in', title: 'Notification settings' },
   },
+  { path: '/parts', name: 'parts', component: () => import('@/pages/PartsPage.vue'), meta: { title: 'Parts' } },
+  { path: '/parts/:partSlug', name: 'part', component: () => import('@/pages/PartPage.vue'), meta: { title: 'Part' } },
+  {
+    path: '/tools/level-check',
+    name: 'level-check',
+    component: () => import('@/pages/LevelCheckPage.vue'),
+    meta: { title: 'Level check' },
+  },
   {
     path: '/:pathMatch(.*)*',
     name: 'not-found',

@@ -58,6 +58,9 @@ export interface RouteNamedMap {
   'my-proposals': RouteRecordInfo<'my-proposals', '/me/proposals', NoParams, NoParams>;
   notifications: RouteRecordInfo<'notifications', '/me/notifications', NoParams, NoParams>;
   'notification-settings': RouteRecordInfo<'notification-settings', '/me/settings/notifications', NoParams, NoParams>;
+  parts: RouteRecordInfo<'parts', '/parts', NoParams, NoParams>;
+  part: RouteRecordInfo<'part', '/parts/:partSlug', { partSlug: string }, { partSlug: string }>;
+  'level-check': RouteRecordInfo<'level-check', '/tools/level-check', NoParams, NoParams>;
   'not-found': RouteRecordInfo<
     'not-found',
     '/:pathMatch(.*)*',
