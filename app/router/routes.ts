@@ -51,6 +51,18 @@ export const routes = [
     component: () => import('@/pages/ProjectGalleryPage.vue'),
     meta: { title: 'Photos and files' },
   },
+  {
+    path: '/projects/:slug/pin-maps',
+    name: 'project-pin-maps',
+    component: () => import('@/pages/ProjectPinMapsPage.vue'),
+    meta: { title: 'Pin maps' },
+  },
+  {
+    path: '/projects/:slug/memory',
+    name: 'project-memory',
+    component: () => import('@/pages/ProjectMemoryPage.vue'),
+    meta: { title: 'Memory budget' },
+  },
   { path: '/projects/:slug/log/:documentId', name: 'log-entry', component: () => import('@/pages/LogEntryPage.vue') },
   {
     path: '/projects/:slug/documents/:documentId/edit',

@@ -20,6 +20,8 @@ export interface RouteNamedMap {
   'project-settings': RouteRecordInfo<'project-settings', '/projects/:slug/settings', Slug, Slug>;
   'project-history': RouteRecordInfo<'project-history', '/projects/:slug/history', Slug, Slug>;
   'project-gallery': RouteRecordInfo<'project-gallery', '/projects/:slug/gallery', Slug, Slug>;
+  'project-pin-maps': RouteRecordInfo<'project-pin-maps', '/projects/:slug/pin-maps', Slug, Slug>;
+  'project-memory': RouteRecordInfo<'project-memory', '/projects/:slug/memory', Slug, Slug>;
   'log-entry': RouteRecordInfo<'log-entry', '/projects/:slug/log/:documentId', SlugDoc, SlugDocOut>;
   'document-edit': RouteRecordInfo<'document-edit', '/projects/:slug/documents/:documentId/edit', SlugDoc, SlugDocOut>;
   'document-history': RouteRecordInfo<
