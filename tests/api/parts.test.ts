@@ -3,7 +3,15 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { parts, revisions } from '../../db/schema';
 import { loadPartProfiles } from '../../db/parts/load';
 import { seedParts } from '../../db/parts/seed';
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { loadConfig } from '../../api/config';
+import { startServer } from '../../api/server';
+import { users } from '../../db/schema';
 import { createTestApp, type SignedInAgent, type TestApp } from '../setup/app';
+import { createTestDatabase } from '../setup/db';
+import { freePort } from '../setup/postgres';
 
 let t: TestApp;
 let maker: SignedInAgent;
@@ -48,6 +56,37 @@ describe('seeding the parts library', () => {
     expect(await partRevisionCount()).toBe(before);
   });
 
+  it('seeds the parts at server start without demo data, so a production database has them too', async () => {
+    const database = await createTestDatabase();
+    const port = await freePort();
+    const server = await startServer(
+      loadConfig({
+        NODE_ENV: 'test',
+        PORT: String(port),
+        APP_ORIGIN: `http://localhost:${port}`,
+        FAKE_GITHUB_PORT: '0',
+        FAKE_SMTP_PORT: '0',
+        LOG_LEVEL: 'silent',
+        SEED_DEMO: 'false',
+        UPLOADS_DIR: fs.mkdtempSync(path.join(os.tmpdir(), 'rwb-test-uploads-')),
+      }),
+      { databaseUrl: database.url },
+    );
+    try {
+      const [members] = await database.db.select({ n: count() }).from(users);
+      expect(members!.n).toBe(0);
+      const slugs = (await database.db.select({ slug: parts.slug }).from(parts)).map((r) => r.slug).sort();
+      expect(slugs).toEqual(
+        loadPartProfiles()
+          .map((p) => p.slug)
+          .sort(),
+      );
+    } finally {
+      await server.stop();
+      await database.drop();
+    }
+  });
+
   it('updates a part still at revision 1 in place when its shipped profile changed', async () => {
     const profiles = loadPartProfiles();
     const changed = profiles.map((p) => (p.slug === 'rp2040' ? { ...p, summary: 'Shipped summary, corrected' } : p));
@@ -86,6 +125,21 @@ describe('part pages', () => {
     // The same erratum does not name the RP2040, so it is not on that page.
     const rp = await t.agent().get('/api/parts/rp2040').expect(200);
     expect((rp.body.mentions as Mention[]).some((m) => m.title.includes('A6 is analog input only'))).toBe(false);
+  });
+
+  it('lists lessons linked to that erratum, with its pins, and lessons whose text names the part', async () => {
+    const atmega = (await t.agent().get('/api/parts/atmega328p').expect(200)).body.mentions as Mention[];
+    const linked = atmega.find((m) => m.kind === 'lesson' && m.title.startsWith('Check the pin table before routing'));
+    expect(linked).toMatchObject({
+      projectSlug: 'greenhouse-vent-controller',
+      url: '/projects/greenhouse-vent-controller#lessons',
+    });
+    expect(linked!.pins).toContain('A6');
+    // Named in its text only (its errata say "ESP32-WROOM", not yet an alias at revision 1): no pins.
+    const esp32 = (await t.agent().get('/api/parts/esp32').expect(200)).body.mentions as Mention[];
+    const named = esp32.find((m) => m.kind === 'lesson' && m.title.startsWith('GPIO34–39 on the ESP32 are input only'));
+    expect(named).toMatchObject({ projectSlug: 'tide-clock', pins: [] });
+    expect(esp32.some((m) => m.kind === 'erratum' && m.projectSlug === 'tide-clock')).toBe(false);
   });
 
   it("hides a draft project's erratum from anonymous readers and shows it to the project's owner", async () => {
