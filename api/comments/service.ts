@@ -2,7 +2,7 @@
  * Discussion threads on proposals and errata: Markdown comments rendered with the same rules as
  * write-ups. Posting notifies everyone already in the thread (and the item's author).
  */
-import { and, asc, eq, isNull } from 'drizzle-orm';
+import { asc, eq } from 'drizzle-orm';
 import type { Comment, CommentList } from '../../shared/contracts/errata';
 import type { DbOrTx, Tx } from '../../db/client';
 import { comments, users } from '../../db/schema';
@@ -12,6 +12,7 @@ import { renderCached } from '../markdown/cache';
 import { plainTextOf } from '../markdown/render';
 import { imagesForMarkdown, type ImageMap } from '../uploads/images';
 import { syncUploadRefs } from '../uploads/refs';
+import { hiddenOf, seesHidden, type Hideable } from '../moderation/visibility';
 
 export type ThreadTarget = { proposalId: number } | { erratumId: number };
 
@@ -29,13 +30,17 @@ function toComment(
     avatarUrl: string | null;
   },
   images: ImageMap,
+  hidden: { row: Hideable; shown: boolean } | null = null,
 ): Comment {
+  // A hidden comment keeps its place in the thread; only its author and moderators read it.
+  const withheld = hidden !== null && !hidden.shown;
   return {
     id: row.id,
     author: { id: row.authorId, handle: row.handle, displayName: row.displayName, avatarUrl: row.avatarUrl },
-    body: row.body,
-    html: renderCached(`comment:${row.id}`, row.body, `c${row.id}-`, images).html,
+    body: withheld ? '' : row.body,
+    html: withheld ? '' : renderCached(`comment:${row.id}`, row.body, `c${row.id}-`, images).html,
     createdAt: row.createdAt.toISOString(),
+    hidden: hidden ? hiddenOf(hidden.row) : null,
   };
 }
 
@@ -48,6 +53,8 @@ const columns = {
   handle: users.handle,
   displayName: users.displayName,
   avatarUrl: users.avatarUrl,
+  hiddenAt: comments.hiddenAt,
+  hiddenReason: comments.hiddenReason,
 };
 
 export async function listComments(ctx: AppContext, target: ThreadTarget, user: AuthUser | null): Promise<CommentList> {
@@ -55,7 +62,7 @@ export async function listComments(ctx: AppContext, target: ThreadTarget, user: 
     .select(columns)
     .from(comments)
     .innerJoin(users, eq(users.id, comments.authorId))
-    .where(and(whereTarget(target), isNull(comments.hiddenAt)))
+    .where(whereTarget(target))
     .orderBy(asc(comments.createdAt), asc(comments.id));
   const images = rows.length
     ? await imagesForMarkdown(
@@ -64,7 +71,17 @@ export async function listComments(ctx: AppContext, target: ThreadTarget, user: 
         rows[0]!.projectId,
       )
     : new Map();
-  return { items: rows.map((row) => toComment(row, images)), canComment: user !== null };
+  const reader = { user, projectRole: null };
+  return {
+    items: rows.map((row) =>
+      toComment(
+        row,
+        images,
+        row.hiddenAt ? { row, shown: seesHidden(reader, { authorId: row.authorId, only: 'author' }) } : null,
+      ),
+    ),
+    canComment: user !== null,
+  };
 }
 
 /** Everyone who has commented in the thread (for notifications). */

@@ -82,9 +82,9 @@ export function registerDocumentRoutes(routes: ApiRoutes, ctx: AppContext) {
   routes.get(
     '/projects/:slug/documents/:documentId',
     { summary: 'A section or log entry (Markdown and rendered HTML)', tag, access: reader, params: documentParamsSchema, response: documentDetailSchema },
-    async ({ locals, params, res }) => {
+    async ({ locals, params, res, user }) => {
       const { project, role } = projectOf(locals);
-      const doc = await service.getDocument(ctx, project, role, params.documentId);
+      const doc = await service.getDocument(ctx, project, role, params.documentId, user);
       res.set('ETag', `"${doc.revision}"`);
       return doc;
     },
@@ -129,13 +129,19 @@ export function registerDocumentRoutes(routes: ApiRoutes, ctx: AppContext) {
   routes.get(
     '/projects/:slug/documents/:documentId/revisions',
     { summary: 'History of a section or log entry, newest first', tag, access: reader, params: documentParamsSchema, response: revisionListSchema },
-    ({ locals, params }) => service.documentRevisions(ctx, projectOf(locals).project, params.documentId),
+    ({ locals, params, user }) => {
+      const { project, role } = projectOf(locals);
+      return service.documentRevisions(ctx, project, params.documentId, { user, projectRole: role });
+    },
   );
 
   routes.get(
     '/projects/:slug/documents/:documentId/revisions/:number',
     { summary: 'One revision of a section or log entry', tag, access: reader, params: revisionParamsSchema, response: revisionDetailSchema },
-    ({ locals, params }) => service.documentRevision(ctx, projectOf(locals).project, params.documentId, params.number),
+    ({ locals, params, user }) => {
+      const { project, role } = projectOf(locals);
+      return service.documentRevision(ctx, project, params.documentId, params.number, { user, projectRole: role });
+    },
   );
 
   routes.post(

@@ -21,6 +21,7 @@ import { saveVersioned, type VersionedStore } from '../revisions/versioned';
 import { imagesForMarkdown, type ImageMap } from '../uploads/images';
 import { syncUploadRefs } from '../uploads/refs';
 import * as q from './queries';
+import { refuseHidden, type Reader } from '../moderation/visibility';
 
 /** `images`: the photos the text may show (api/uploads/images.ts). */
 export function toDocumentDetail(
@@ -48,9 +49,11 @@ async function present(
   return toDocumentDetail(project, doc, role, await imagesForMarkdown(ctx.db, [doc.body], project.id));
 }
 
-async function load(ctx: AppContext, project: ProjectRow, id: number): Promise<q.DocumentRow> {
+/** With a `reader`: a hidden document answers 410 with the reason to those who may not see it. */
+async function load(ctx: AppContext, project: ProjectRow, id: number, reader?: Reader): Promise<q.DocumentRow> {
   const doc = await q.findDocument(ctx.db, project.id, id);
   if (!doc) throw fail.notFound('The section or log entry');
+  if (reader) refuseHidden(doc, reader, 'This section or log entry');
   return doc;
 }
 
@@ -59,8 +62,9 @@ export async function getDocument(
   project: ProjectRow,
   role: ProjectRole | null,
   id: number,
+  user: AuthUser | null = null,
 ): Promise<DocumentDetail> {
-  return present(ctx, project, await load(ctx, project, id), role);
+  return present(ctx, project, await load(ctx, project, id, { user, projectRole: role }), role);
 }
 
 export async function addSection(
@@ -216,14 +220,20 @@ export async function reorderSections(
   return projectDetail(ctx, fresh ?? project, role);
 }
 
-export async function documentRevisions(ctx: AppContext, project: ProjectRow, id: number): Promise<RevisionList> {
-  const doc = await load(ctx, project, id);
+export async function documentRevisions(ctx: AppContext, project: ProjectRow, id: number, reader?: Reader): Promise<RevisionList> {
+  const doc = await load(ctx, project, id, reader);
   const rows = await revisionQueries.listRevisions(ctx.db, 'document', doc.id);
   return { items: rows.map(toRevisionSummary) };
 }
 
-export async function documentRevision(ctx: AppContext, project: ProjectRow, id: number, number: number): Promise<RevisionDetail> {
-  const doc = await load(ctx, project, id);
+export async function documentRevision(
+  ctx: AppContext,
+  project: ProjectRow,
+  id: number,
+  number: number,
+  reader?: Reader,
+): Promise<RevisionDetail> {
+  const doc = await load(ctx, project, id, reader);
   const row = await revisionQueries.findRevision(ctx.db, 'document', doc.id, number);
   if (!row) throw fail.notFound(`Revision ${number}`);
   return toRevisionDetail(row);

@@ -14,20 +14,27 @@ import {
 
 export type ErratumRow = typeof errata.$inferSelect;
 
-/** Visible errata of a project, in number order. */
-export async function listErrata(db: DbOrTx, projectId: number): Promise<ErratumRow[]> {
+/** Visible errata of a project, in number order (`withHidden`: also those moderators hid). */
+export async function listErrata(db: DbOrTx, projectId: number, withHidden = false): Promise<ErratumRow[]> {
   return db
     .select()
     .from(errata)
-    .where(and(eq(errata.projectId, projectId), isNull(errata.hiddenAt)))
+    .where(and(eq(errata.projectId, projectId), withHidden ? undefined : isNull(errata.hiddenAt)))
     .orderBy(asc(errata.number));
 }
 
-export async function findErratum(db: DbOrTx, projectId: number, number: number): Promise<ErratumRow | undefined> {
+export async function findErratum(
+  db: DbOrTx,
+  projectId: number,
+  number: number,
+  withHidden = false,
+): Promise<ErratumRow | undefined> {
   const [row] = await db
     .select()
     .from(errata)
-    .where(and(eq(errata.projectId, projectId), eq(errata.number, number), isNull(errata.hiddenAt)));
+    .where(
+      and(eq(errata.projectId, projectId), eq(errata.number, number), withHidden ? undefined : isNull(errata.hiddenAt)),
+    );
   return row;
 }
 

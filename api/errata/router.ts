@@ -21,7 +21,7 @@ import {
 import { listComments } from '../comments/service';
 import type { AppContext } from '../context';
 import { access, type ApiRoutes } from '../http/routes';
-import { rateLimit } from '../middleware/rate-limit';
+import { memberBudgets, rateLimit } from '../middleware/rate-limit';
 import { projectAccess, projectOf } from '../projects/access';
 import { baseRevisionOf } from '../revisions/versioned';
 import { listCategories } from './queries';
@@ -30,7 +30,7 @@ import { commentOnErratum } from './notify';
 
 export function registerErrataRoutes(routes: ApiRoutes, ctx: AppContext) {
   const writes = rateLimit(ctx, { name: 'writes', points: 300, durationSeconds: 60 });
-  const comments = rateLimit(ctx, { name: 'comments', points: 30, durationSeconds: 60 });
+  const comments = rateLimit(ctx, memberBudgets.comments);
   const reader = projectAccess('read');
   const participant = projectAccess('participate');
   const editor = projectAccess('edit');
@@ -149,7 +149,10 @@ export function registerErrataRoutes(routes: ApiRoutes, ctx: AppContext) {
       params: erratumParamsSchema,
       response: revisionListSchema,
     },
-    ({ locals, params }) => service.erratumRevisions(ctx, projectOf(locals).project, params.number),
+    ({ locals, params, user }) => {
+      const { project, role } = projectOf(locals);
+      return service.erratumRevisions(ctx, project, params.number, { user, projectRole: role });
+    },
   );
 
   routes.get(
@@ -161,7 +164,10 @@ export function registerErrataRoutes(routes: ApiRoutes, ctx: AppContext) {
       params: erratumRevisionParamsSchema,
       response: revisionDetailSchema,
     },
-    ({ locals, params }) => service.erratumRevision(ctx, projectOf(locals).project, params.number, params.revision),
+    ({ locals, params, user }) => {
+      const { project, role } = projectOf(locals);
+      return service.erratumRevision(ctx, project, params.number, params.revision, { user, projectRole: role });
+    },
   );
 
   routes.post(

@@ -28,6 +28,7 @@ import { currentTagIds, resolveTagIds, tagRefsByIds } from '../tags/service';
 import { imagesForMarkdown, type ImageMap } from '../uploads/images';
 import { syncUploadRefs } from '../uploads/refs';
 import * as q from './queries';
+import { hiddenOf, refuseHidden, seesHidden, type Reader } from '../moderation/visibility';
 import { notifyNewErratum } from './notify';
 import { withNotifications } from '../notifications/service';
 
@@ -206,6 +207,7 @@ async function present(ctx: AppContext, rows: q.ErratumRow[], boards: Boards): P
     commentCount: counts.get(row.id) ?? 0,
     createdAt: row.createdAt.toISOString(),
     updatedAt: row.updatedAt.toISOString(),
+    hidden: hiddenOf(row),
   }));
 }
 
@@ -220,7 +222,7 @@ export async function listProjectErrata(
   user: AuthUser | null,
 ): Promise<ErratumList> {
   const [rows, boards, categories] = await Promise.all([
-    q.listErrata(ctx.db, project.id),
+    q.listErrata(ctx.db, project.id, seesHidden({ user, projectRole: role })),
     q.projectBoards(ctx.db, project.id),
     q.listCategories(ctx.db),
   ]);
@@ -232,9 +234,11 @@ export async function listProjectErrata(
   };
 }
 
-async function load(ctx: AppContext, project: ProjectRow, number: number): Promise<q.ErratumRow> {
-  const row = await q.findErratum(ctx.db, project.id, number);
+/** With a `reader`: a hidden erratum answers 410 with the reason to those who may not see it. */
+async function load(ctx: AppContext, project: ProjectRow, number: number, reader?: Reader): Promise<q.ErratumRow> {
+  const row = await q.findErratum(ctx.db, project.id, number, reader !== undefined);
   if (!row) throw fail.notFound(`Erratum ${code(number)}`);
+  if (reader) refuseHidden(row, reader, `Erratum ${code(number)}`);
   return row;
 }
 
@@ -273,7 +277,7 @@ export async function getErratum(
   user: AuthUser | null,
   number: number,
 ): Promise<ErratumDetail> {
-  return erratumDetail(ctx, project, role, user, await load(ctx, project, number));
+  return erratumDetail(ctx, project, role, user, await load(ctx, project, number, { user, projectRole: role }));
 }
 
 /**
@@ -420,8 +424,13 @@ export async function saveErratum(
   };
 }
 
-export async function erratumRevisions(ctx: AppContext, project: ProjectRow, number: number): Promise<RevisionList> {
-  const row = await load(ctx, project, number);
+export async function erratumRevisions(
+  ctx: AppContext,
+  project: ProjectRow,
+  number: number,
+  reader?: Reader,
+): Promise<RevisionList> {
+  const row = await load(ctx, project, number, reader);
   const rows = await revisionQueries.listRevisions(ctx.db, 'erratum', row.id);
   return { items: rows.map(toRevisionSummary) };
 }
@@ -432,8 +441,9 @@ export async function erratumRevision(
   project: ProjectRow,
   number: number,
   revision: number,
+  reader?: Reader,
 ): Promise<RevisionDetail> {
-  const row = await load(ctx, project, number);
+  const row = await load(ctx, project, number, reader);
   const found = await revisionQueries.findRevision(ctx.db, 'erratum', row.id, revision);
   if (!found) throw fail.notFound(`Revision ${revision} of ${code(number)}`);
   const detail = toRevisionDetail(found);

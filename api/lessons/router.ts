@@ -29,9 +29,9 @@ export function registerLessonRoutes(routes: ApiRoutes, ctx: AppContext) {
       params: slugParamsSchema,
       response: lessonListSchema,
     },
-    ({ locals }) => {
+    ({ locals, user }) => {
       const { project, role } = projectOf(locals);
-      return service.listLessons(ctx, project, role);
+      return service.listLessons(ctx, project, role, user);
     },
   );
 

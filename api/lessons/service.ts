@@ -21,6 +21,7 @@ import { contentHash, saveVersioned, type SaveResult, type VersionedStore } from
 import { currentTagIds, resolveTagIds, tagRefsByIds } from '../tags/service';
 import { imagesForMarkdown } from '../uploads/images';
 import { syncUploadRefs } from '../uploads/refs';
+import { hiddenOf, seesHidden } from '../moderation/visibility';
 
 type LessonRow = typeof lessons.$inferSelect;
 interface LessonFields {
@@ -86,14 +87,22 @@ async function present(ctx: AppContext, rows: LessonRow[]): Promise<Lesson[]> {
     revision: row.currentRevision,
     createdAt: row.createdAt.toISOString(),
     updatedAt: row.updatedAt.toISOString(),
+    hidden: hiddenOf(row),
   }));
 }
 
-export async function listLessons(ctx: AppContext, project: ProjectRow, role: ProjectRole | null): Promise<LessonList> {
+/** Hidden lessons are listed, marked, only to the project's members and the moderators. */
+export async function listLessons(
+  ctx: AppContext,
+  project: ProjectRow,
+  role: ProjectRole | null,
+  user: AuthUser | null = null,
+): Promise<LessonList> {
+  const withHidden = seesHidden({ user, projectRole: role });
   const rows = await ctx.db
     .select()
     .from(lessons)
-    .where(and(eq(lessons.projectId, project.id), isNull(lessons.hiddenAt)))
+    .where(and(eq(lessons.projectId, project.id), withHidden ? undefined : isNull(lessons.hiddenAt)))
     .orderBy(asc(lessons.position), asc(lessons.id));
   return { items: await present(ctx, rows), viewer: viewerOf(role) };
 }

@@ -63,9 +63,9 @@ export function registerProjectRoutes(routes: ApiRoutes, ctx: AppContext) {
   routes.get(
     '/projects/:slug',
     { summary: 'A project with its write-up, build log and board revisions', tag, access: reader, params: slugParamsSchema, response: projectDetailSchema },
-    ({ locals }) => {
+    ({ locals, user }) => {
       const { project, role } = projectOf(locals);
-      return service.projectDetail(ctx, project, role);
+      return service.projectDetail(ctx, project, role, user);
     },
   );
 

@@ -35,6 +35,7 @@ import { imagesForMarkdown, type ImageMap } from '../uploads/images';
 import { toCover, type UploadRow } from '../uploads/present';
 import { coversOf } from '../uploads/queries';
 import { syncUploadRefs } from '../uploads/refs';
+import { hiddenOf, seesHidden, type Reader } from '../moderation/visibility';
 
 export const PAGE_SIZE = 24;
 /** Deleted projects can be restored by an admin for this long, then they are purged. */
@@ -195,6 +196,7 @@ export function toDocumentSummary(
     html: rendered.html,
     toc: rendered.toc,
     updatedAt: doc.updatedAt.toISOString(),
+    hidden: hiddenOf(doc),
   };
 }
 
@@ -218,14 +220,27 @@ export async function projectDetail(
   ctx: AppContext,
   project: ProjectRow,
   role: ProjectRole | null,
+  user: AuthUser | null = null,
 ): Promise<ProjectDetail> {
   const key = `${project.id}:${project.changeSeq}`;
   const hit = detailCache.get(key);
-  if (hit && Date.now() - hit.at < DETAIL_TTL_MS) return { ...hit.detail, viewer: viewerOf(role) };
-  const detail = await loadProjectDetail(ctx, project);
-  detailCache.set(key, { at: Date.now(), detail });
-  if (detailCache.size > DETAIL_LIMIT) detailCache.delete(detailCache.keys().next().value as string);
-  return { ...detail, viewer: viewerOf(role) };
+  let detail = hit && Date.now() - hit.at < DETAIL_TTL_MS ? hit.detail : undefined;
+  if (!detail) {
+    detail = await loadProjectDetail(ctx, project);
+    detailCache.set(key, { at: Date.now(), detail });
+    if (detailCache.size > DETAIL_LIMIT) detailCache.delete(detailCache.keys().next().value as string);
+  }
+  return { ...forReader(detail, { user, projectRole: role }), viewer: viewerOf(role) };
+}
+
+/** The cached page holds hidden sections and log entries; only those who may see them get them. */
+function forReader(detail: Omit<ProjectDetail, 'viewer'>, reader: Reader): Omit<ProjectDetail, 'viewer'> {
+  if (seesHidden(reader)) return detail;
+  return {
+    ...detail,
+    sections: detail.sections.filter((d) => !d.hidden),
+    logEntries: detail.logEntries.filter((d) => !d.hidden),
+  };
 }
 
 async function loadProjectDetail(ctx: AppContext, project: ProjectRow): Promise<Omit<ProjectDetail, 'viewer'>> {
@@ -259,6 +274,7 @@ async function loadProjectDetail(ctx: AppContext, project: ProjectRow): Promise<
     updatedAt: project.updatedAt.toISOString(),
     publishedAt: iso(project.publishedAt),
     cover: toCover(covers.get(project.id)),
+    hidden: hiddenOf(project),
   };
 }
 

@@ -15,14 +15,14 @@ import { slugParamsSchema } from '../../shared/contracts/projects';
 import { listComments } from '../comments/service';
 import type { AppContext } from '../context';
 import { access, type ApiRoutes } from '../http/routes';
-import { rateLimit } from '../middleware/rate-limit';
+import { memberBudgets, rateLimit } from '../middleware/rate-limit';
 import { projectAccess, projectOf } from '../projects/access';
 import * as service from './service';
 
 export function registerProposalRoutes(routes: ApiRoutes, ctx: AppContext) {
-  const proposing = rateLimit(ctx, { name: 'proposals', points: 20, durationSeconds: 3600 });
+  const proposing = rateLimit(ctx, memberBudgets.proposals);
   const decisions = rateLimit(ctx, { name: 'writes', points: 300, durationSeconds: 60 });
-  const commenting = rateLimit(ctx, { name: 'comments', points: 30, durationSeconds: 60 });
+  const commenting = rateLimit(ctx, memberBudgets.comments);
   const tag = 'proposals';
 
   routes.post(

@@ -42,6 +42,7 @@ import * as errataQueries from '../errata/queries';
 import { notifyNewErratum } from '../errata/notify';
 import { notify, projectMemberIds, withNotifications } from '../notifications/service';
 import { canRead } from '../projects/access';
+import { hiddenOf, refuseHidden } from '../moderation/visibility';
 import { findProjectById, memberRole, touchProject, type ProjectRow } from '../projects/queries';
 import { findRevision } from '../revisions/queries';
 import { saveVersioned } from '../revisions/versioned';
@@ -151,6 +152,7 @@ async function toSummaries(db: DbOrTx, rows: SummaryRow[]): Promise<ProposalSumm
       decisionReason: p.decisionReason,
       commentCount: counts.find((c) => c.id === p.id)?.n ?? 0,
       createdAt: p.createdAt.toISOString(),
+      hidden: hiddenOf(p),
     };
   });
 }
@@ -273,14 +275,22 @@ async function loadRow(db: DbOrTx, id: number): Promise<SummaryRow> {
   return row;
 }
 
-/** Read access: whoever can read the project (drafts: members and admins), and the proposer. */
+/**
+ * Read access: whoever can read the project (drafts: members and admins), and the proposer. A
+ * hidden proposal stays readable only to its proposer and the moderators; others get 410.
+ */
 export async function loadReadable(ctx: AppContext, id: number, user: AuthUser | null) {
-  const row = await loadRow(ctx.db, id);
+  const [row] = await baseQuery(ctx.db).where(eq(proposals.id, id));
+  if (!row) throw fail.notFound('The proposal');
   const project = await findProjectById(ctx.db, row.proposal.projectId);
   if (!project || project.deletedAt) throw fail.notFound('The proposal');
   const role = user ? await memberRole(ctx.db, project.id, user.id) : null;
   const isAuthor = user?.id === row.proposal.authorId;
   if (!canRead(project, role, user?.role) && !isAuthor) throw fail.notFound('The proposal');
+  refuseHidden(row.proposal, { user, projectRole: role }, 'This proposal', {
+    authorId: row.proposal.authorId,
+    only: 'author',
+  });
   return { row, project, role };
 }
 

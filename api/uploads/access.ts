@@ -11,7 +11,8 @@
 import type { ProjectRole } from '../../shared/domain';
 import { fail } from '../http/errors';
 import type { AccessRule, RequestState } from '../http/routes';
-import { canRead } from '../projects/access';
+import { refuseHidden } from '../moderation/visibility';
+import { refuseUnreadable } from '../projects/access';
 import { findProjectById, memberRole, type ProjectRow } from '../projects/queries';
 import type { UploadRow } from './present';
 import { findUpload } from './queries';
@@ -35,8 +36,10 @@ export function uploadAccess(need: 'read' | 'edit'): AccessRule {
       const project = await findProjectById(state.ctx.db, upload.projectId);
       if (!project || project.deletedAt) throw fail.notFound('The file');
       const role = state.user ? await memberRole(state.ctx.db, project.id, state.user.id) : null;
-      if (!canRead(project, role, state.user?.role)) throw fail.notFound('The file');
-      if (!role && (upload.state === 'failed' || upload.hiddenAt)) throw fail.notFound('The file');
+      refuseUnreadable(project, role, state.user?.role, 'The file');
+      if (!role && upload.state === 'failed') throw fail.notFound('The file');
+      // Hidden by moderators: its uploader, the project's members and moderators still see it.
+      refuseHidden(upload, { user: state.user, projectRole: role }, 'The file', { authorId: upload.ownerId });
       if (need === 'edit' && !role) throw fail.forbidden('Only the owner and editors of this project can change its files.');
       const locals: UploadLocals = { upload, project, role };
       Object.assign(state.locals, locals);

@@ -8,6 +8,7 @@ import type { Upload, Variant, VariantName } from '../../shared/contracts/upload
 import { variantNames } from '../../shared/contracts/uploads';
 import type { uploads } from '../../db/schema';
 import { extensionOf } from './types';
+import { hiddenOf } from '../moderation/visibility';
 
 export type UploadRow = typeof uploads.$inferSelect;
 
@@ -97,6 +98,7 @@ export function toUpload(row: UploadRow, referenced: boolean): Upload {
     failure: row.state === 'failed' ? (details.failure ?? 'Processing failed.') : null,
     referenced,
     createdAt: row.createdAt.toISOString(),
+    hidden: hiddenOf(row),
   };
 }
 

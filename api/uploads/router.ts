@@ -9,7 +9,7 @@ import {
 } from '../../shared/contracts/uploads';
 import type { AppContext } from '../context';
 import type { ApiRoutes } from '../http/routes';
-import { rateLimit } from '../middleware/rate-limit';
+import { memberBudgets, rateLimit } from '../middleware/rate-limit';
 import { projectAccess, projectOf } from '../projects/access';
 import { findProjectById } from '../projects/queries';
 import { projectDetail } from '../projects/service';
@@ -22,7 +22,7 @@ import * as service from './service';
 const fileParamsSchema = uploadParamsSchema.extend({ file: z.string().max(64) });
 
 export function registerUploadRoutes(routes: ApiRoutes, ctx: AppContext) {
-  const uploadsPerMinute = rateLimit(ctx, { name: 'uploads', points: 120, durationSeconds: 60 });
+  const uploadsPerMinute = rateLimit(ctx, memberBudgets.uploads);
   const writes = rateLimit(ctx, { name: 'writes', points: 300, durationSeconds: 60 });
   const tag = 'uploads';
 

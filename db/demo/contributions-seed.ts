@@ -3,7 +3,7 @@
  * history, lessons, proposals (an accepted new erratum becomes a credited erratum), discussions
  * and follows. Dated in the past like the write-ups. Everything here is invented for the demo.
  */
-import { and, eq } from 'drizzle-orm';
+import { and, asc, eq, inArray, ne } from 'drizzle-orm';
 import type { ErratumFields } from '../../shared/contracts/errata';
 import { erratumFieldsSchema } from '../../shared/contracts/errata';
 import { slugify } from '../../shared/text';
@@ -18,6 +18,7 @@ import {
   documents,
   erratumTags,
   errata,
+  flags,
   follows,
   lessonErrata,
   lessonTags,
@@ -25,7 +26,9 @@ import {
   projects,
   proposals,
   tags,
+  users,
 } from '../schema';
+import { demoAccounts } from './accounts';
 import { demoContributions } from './contributions';
 import type { DemoComment, DemoErratumFields } from './types';
 
@@ -234,5 +237,32 @@ export async function seedDemoContributions(tx: Tx, id: (login: string) => numbe
         .values(demo.followers.map((login) => ({ userId: id(login), projectId: project.id })))
         .onConflictDoNothing();
     }
+  }
+
+  // The demo members joined long before their dated contributions, so none counts as a first-day
+  // account (api/middleware/rate-limit.ts gives those tighter budgets).
+  await tx
+    .update(users)
+    .set({ createdAt: at(400) })
+    .where(inArray(users.id, demoAccounts.map((a) => id(a.login))));
+
+  // One open flag for the demo moderator to handle: a member questions someone else's comment.
+  const flagger = id('bram-tolliver');
+  const [comment] = await tx
+    .select({ id: comments.id, projectId: comments.projectId })
+    .from(comments)
+    .where(ne(comments.authorId, flagger))
+    .orderBy(asc(comments.id))
+    .limit(1);
+  if (comment) {
+    await tx.insert(flags).values({
+      targetKind: 'comment',
+      targetId: comment.id,
+      projectId: comment.projectId,
+      authorId: flagger,
+      reason: 'wrong',
+      text: 'I think this suggestion is mistaken; please check it against the datasheet before anyone follows it.',
+      createdAt: at(1),
+    });
   }
 }

@@ -5,6 +5,7 @@ import { z } from 'zod';
 import { erratumStatuses, notificationModes, proposalKinds, proposalStatuses, severities, tagStates } from '../domain';
 import { line, prose, slugSchema } from '../text';
 import { documentContentSchema, revisionNumberSchema, slugParamsSchema, viewerPermissionsSchema } from './projects';
+import { hiddenInfoSchema } from './moderation';
 import { userSummarySchema } from './users';
 
 export const MAX_ERRATUM_TEXT = 20_000;
@@ -105,6 +106,8 @@ export const erratumSchema = z
     commentCount: z.number().int(),
     createdAt: z.string(),
     updatedAt: z.string(),
+    /** Set when moderators hid it; only people who may still see it receive it (moderation.ts). */
+    hidden: hiddenInfoSchema.nullable().optional(),
   })
   .meta({ id: 'Erratum' });
 export type Erratum = z.infer<typeof erratumSchema>;
@@ -177,6 +180,7 @@ export const lessonSchema = z
     revision: z.number().int(),
     createdAt: z.string(),
     updatedAt: z.string(),
+    hidden: hiddenInfoSchema.nullable().optional(),
   })
   .meta({ id: 'Lesson' });
 export type Lesson = z.infer<typeof lessonSchema>;
@@ -243,6 +247,7 @@ export const proposalSummarySchema = z
     decisionReason: z.string().nullable(),
     commentCount: z.number().int(),
     createdAt: z.string(),
+    hidden: hiddenInfoSchema.nullable().optional(),
   })
   .meta({ id: 'ProposalSummary' });
 export type ProposalSummary = z.infer<typeof proposalSummarySchema>;
@@ -311,7 +316,15 @@ export const commentInputSchema = z
   .meta({ id: 'CommentInput' });
 
 export const commentSchema = z
-  .object({ id: z.number().int(), author: userSummarySchema, body: z.string(), html: z.string(), createdAt: z.string() })
+  .object({
+    id: z.number().int(),
+    author: userSummarySchema,
+    /** Empty for a hidden comment, except to its author and the moderators. */
+    body: z.string(),
+    html: z.string(),
+    createdAt: z.string(),
+    hidden: hiddenInfoSchema.nullable().optional(),
+  })
   .meta({ id: 'Comment' });
 export type Comment = z.infer<typeof commentSchema>;
 

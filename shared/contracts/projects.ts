@@ -5,6 +5,7 @@
 import { z } from 'zod';
 import { hazards, projectRoles, projectStatuses } from '../domain';
 import { line, prose, slugSchema } from '../text';
+import { hiddenInfoSchema } from './moderation';
 import { userSummarySchema } from './users';
 
 /** Common open hardware and software licences (SPDX identifiers), plus "other". */
@@ -157,6 +158,8 @@ export const documentSummarySchema = z
     html: z.string(),
     toc: z.array(tocEntrySchema),
     updatedAt: z.string(),
+    /** Set when moderators hid it; only people who may still see it receive it (moderation.ts). */
+    hidden: hiddenInfoSchema.nullable().optional(),
   })
   .meta({ id: 'DocumentSummary' });
 export type DocumentSummary = z.infer<typeof documentSummarySchema>;
@@ -186,6 +189,8 @@ export const projectDetailSchema = z
     publishedAt: z.string().nullable(),
     cover: projectCoverSchema.nullable(),
     viewer: viewerPermissionsSchema,
+    /** Set when moderators hid it; only people who may still see it receive it (moderation.ts). */
+    hidden: hiddenInfoSchema.nullable().optional(),
   })
   .meta({ id: 'ProjectDetail' });
 export type ProjectDetail = z.infer<typeof projectDetailSchema>;

@@ -4,6 +4,7 @@
  * access rules of the project they belong to.
  */
 import { z } from 'zod';
+import { hiddenInfoSchema } from './moderation';
 import { line } from '../text';
 
 export const imageTypes = ['image/jpeg', 'image/png', 'image/webp', 'image/avif', 'image/gif'] as const;
@@ -56,6 +57,8 @@ export const uploadSchema = z
     failure: z.string().nullable(),
     referenced: z.boolean(),
     createdAt: z.string(),
+    /** Set when moderators hid it; only the project's members, its uploader and moderators see it. */
+    hidden: hiddenInfoSchema.nullable().optional(),
   })
   .meta({ id: 'Upload' });
 export type Upload = z.infer<typeof uploadSchema>;
