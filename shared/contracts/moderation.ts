@@ -30,16 +30,19 @@
  *
  * The audit log is append-only: no route changes or removes an entry (other methods answer 404).
  *
- * Hidden content, as every read API answers it. Moderators, admins and the content's author (for
- * content inside a project also the project's owner and editors) still receive it, marked with
- * `hidden: { reason, at }`. Everyone else:
+ * Hidden content, as every read API answers it. Moderators and admins still receive it, marked
+ * with `hidden: { reason, at }`, and so do the people who answer for it: the project's owner and
+ * editors for the project, its documents, errata, lessons and photos (and a photo's uploader);
+ * only the author for a comment or a proposal (members write those on others' projects).
+ * Everyone else:
  * - a hidden project, write-up section or log entry (document), erratum or proposal read by itself
  *   answers 410 `gone` with `details: { hidden: { reason, at } }`, so the page can show the reason
  *   in place of the content (a draft the reader may not see stays 404 first);
  * - a hidden photo or file answers 410 `gone` on its file routes;
  * - lists leave hidden sections, log entries, errata, lessons, proposals and photos out;
  * - a hidden comment stays in its thread as a placeholder: empty `body` and `html`, with `hidden`.
- * Hidden content never appears in search.
+ * Hidden content never appears in search. The `hidden` field on the existing read contracts
+ * (projects, documents, errata, lessons, proposals, comments, uploads) is `HiddenInfo | null`.
  */
 import { z } from 'zod';
 import { flagReasons, flagStates } from '../domain';
