@@ -49,7 +49,9 @@ afterAll(async () => {
 describe('tag pages', () => {
   it("hides a draft project's lesson from anonymous readers and shows it to the project's owner", async () => {
     const before = (await t.agent().get('/api/tags/decoupling').expect(200)).body;
-    const shown = await addLesson(publishedSlug, 'Kestrel: put 100 nF at every supply pin of the timer.', ['decoupling']);
+    const shown = await addLesson(publishedSlug, 'Kestrel: put 100 nF at every supply pin of the timer.', [
+      'decoupling',
+    ]);
     const secret = await addLesson(draftSlug, 'Kestrel draft: a secret decoupling note.', ['decoupling']);
     expect(shown.status).toBe(201);
     expect(secret.status).toBe(201);
@@ -86,7 +88,9 @@ describe('tag pages', () => {
     expect(lesson.status).toBe(201);
     const visible = (await owner.agent.get('/api/tags/debounce').expect(200)).body;
     expect(visible.lessons.map((l: { id: number }) => l.id)).toContain(lesson.body.id);
-    await t.ctx.db.execute(sql`UPDATE lessons SET hidden_at = now(), hidden_reason = 'test' WHERE id = ${lesson.body.id}`);
+    await t.ctx.db.execute(
+      sql`UPDATE lessons SET hidden_at = now(), hidden_reason = 'test' WHERE id = ${lesson.body.id}`,
+    );
     for (const agent of [t.agent(), owner.agent]) {
       const page = (await agent.get('/api/tags/debounce').expect(200)).body;
       expect(page.lessons.map((l: { id: number }) => l.id)).not.toContain(lesson.body.id);
@@ -152,7 +156,9 @@ describe('the tag index', () => {
     const anon = (await t.agent().get('/api/tags').query({ state: 'pending' }).expect(200)).body;
     expect(anon.items).toEqual([]);
     const mod = (await moderator.agent.get('/api/tags').query({ state: 'pending' }).expect(200)).body;
-    expect(mod.items.map((i: { slug: string }) => i.slug)).toEqual(expect.arrayContaining(['adc-only-pin', 'silkscreen']));
+    expect(mod.items.map((i: { slug: string }) => i.slug)).toEqual(
+      expect.arrayContaining(['adc-only-pin', 'silkscreen']),
+    );
     const creator = (await editor.agent.get('/api/tags').query({ state: 'pending' }).expect(200)).body;
     expect(creator.items.map((i: { slug: string }) => i.slug)).toContain('adc-only-pin');
     const approved = (await t.agent().get('/api/tags').query({ state: 'approved' }).expect(200)).body;
@@ -185,7 +191,9 @@ describe('the tag index', () => {
 
 describe('deprecated tags', () => {
   it('refuses adding a deprecated tag with a 400 and keeps it on content that has it', async () => {
-    const kept = await addLesson(publishedSlug, 'Kestrel: the enclosure needs a vent over the regulator.', ['enclosure']);
+    const kept = await addLesson(publishedSlug, 'Kestrel: the enclosure needs a vent over the regulator.', [
+      'enclosure',
+    ]);
     expect(kept.status).toBe(201);
     await moderator.agent
       .post('/api/tags/enclosure/deprecate')
