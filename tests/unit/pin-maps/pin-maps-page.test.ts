@@ -114,6 +114,8 @@ describe('ProjectPinMapsPage', { timeout: 60_000 }, () => {
     expect(findings[0]!.get('[data-testid="finding-source"]').text()).toContain(
       'Microchip ATmega328/P Datasheet Complete DS40001984A (2018), Pin descriptions, ADC7:6 (TQFP and QFN/MLF packages only) (datasheet)',
     );
+    // Next to A6 on the board, A5, A4 and A3 (PC5–PC3) are full digital I/O pins; A7 is analog-only too.
+    expect(findings[0]!.get('[data-testid="finding-nearest"]').text()).toContain('A5 (PC5), A4 (PC4), A3 (PC3)');
     expect(wrapper.find('[data-testid="check-caution"]').exists()).toBe(true);
     // The row the finding points at is marked with a word, not colour alone.
     const row = wrapper.get('[data-testid="pin-map-row"]');
