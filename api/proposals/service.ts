@@ -269,12 +269,6 @@ export async function createProposal(
 
 // --- reading ---------------------------------------------------------------------------------
 
-async function loadRow(db: DbOrTx, id: number): Promise<SummaryRow> {
-  const [row] = await baseQuery(db).where(eq(proposals.id, id));
-  if (!row || row.proposal.hiddenAt) throw fail.notFound('The proposal');
-  return row;
-}
-
 /**
  * Read access: whoever can read the project (drafts: members and admins), and the proposer. A
  * hidden proposal stays readable only to its proposer and the moderators; others get 410.

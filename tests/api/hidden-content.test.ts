@@ -214,12 +214,8 @@ describe('a hidden lesson', () => {
 describe('a hidden comment', () => {
   const thread = (agent: ReturnType<typeof anon>) =>
     agent.get(`/api/projects/${slug}/errata/${erratumNumber}/comments`).expect(200);
-  const inThread = (res: { body: { items: { id: number }[] } }) =>
-    res.body.items.find((c) => c.id === ids.comment) as {
-      body: string;
-      html: string;
-      hidden: { reason: string } | null;
-    };
+  type ThreadComment = { id: number; body: string; html: string; hidden: { reason: string } | null };
+  const inThread = (res: { body: { items: ThreadComment[] } }) => res.body.items.find((c) => c.id === ids.comment)!;
 
   it('keeps its place with the reason and no text for readers (the project owner included), and its text for its author', async () => {
     await hide('comment', ids.comment);

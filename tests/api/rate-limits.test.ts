@@ -13,6 +13,9 @@ let owner: SignedInAgent;
 let established: SignedInAgent;
 let fresh: SignedInAgent;
 let projectId: number;
+let slug: string;
+let erratumNumber: number;
+let proposalId: number;
 
 beforeAll(async () => {
   t = await createTestApp();
@@ -28,7 +31,30 @@ beforeAll(async () => {
     .send({ title: 'Hedgehog Feeder Cam', summary: '', licence: 'MIT', hazards: [] })
     .expect(201);
   projectId = p.body.id;
-  await owner.agent.post(`/api/projects/${p.body.slug}/publish`).set(owner.headers).expect(200);
+  slug = p.body.slug;
+  const revA = (
+    await owner.agent
+      .post(`/api/projects/${slug}/board-revisions`)
+      .set(owner.headers)
+      .send({ label: 'Rev A' })
+      .expect(201)
+  ).body.id;
+  const fields = { category: 'power', severity: 'minor', status: 'open', affected: [revA] };
+  erratumNumber = (
+    await owner.agent
+      .post(`/api/projects/${slug}/errata`)
+      .set(owner.headers)
+      .send({ ...fields, title: 'IR LED too dim' })
+      .expect(201)
+  ).body.number;
+  await owner.agent.post(`/api/projects/${slug}/publish`).set(owner.headers).expect(200);
+  proposalId = (
+    await established.agent
+      .post(`/api/projects/${slug}/proposals`)
+      .set(established.headers)
+      .send({ kind: 'new_erratum', payload: { ...fields, title: 'PIR triggers on rain' } })
+      .expect(201)
+  ).body.id;
 });
 afterAll(async () => {
   await t.close();
@@ -67,6 +93,35 @@ describe('per-member limits', () => {
     const res = await flag(established);
     expect(res.status).toBe(429);
     expect(res.body.error.code).toBe('rate_limited');
+  });
+
+  it('counts a first-day account’s comments on errata and proposals together: 7 a minute, then 429', async () => {
+    for (let i = 0; i < 7; i++) {
+      const url =
+        i % 2 ? `/api/proposals/${proposalId}/comments` : `/api/projects/${slug}/errata/${erratumNumber}/comments`;
+      expect(
+        (
+          await fresh.agent
+            .post(url)
+            .set(fresh.headers)
+            .send({ body: `Note ${i}` })
+        ).status,
+        `comment ${i + 1}`,
+      ).toBe(201);
+    }
+    const res = await fresh.agent
+      .post(`/api/proposals/${proposalId}/comments`)
+      .set(fresh.headers)
+      .send({ body: 'One more' });
+    expect(res.status).toBe(429);
+    expect(res.body.error.code).toBe('rate_limited');
+    expect(Number(res.headers['retry-after'])).toBeLessThanOrEqual(60);
+    // An established member still comments.
+    await established.agent
+      .post(`/api/proposals/${proposalId}/comments`)
+      .set(established.headers)
+      .send({ body: 'Fine here' })
+      .expect(201);
   });
 
   it('lifts the first-day limit once the account is a day old', async () => {
