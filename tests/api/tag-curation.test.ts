@@ -194,10 +194,24 @@ describe('merging the demo near-duplicate', () => {
   it('retags in one go, answers the old slug with a redirect, and unmerge puts every tag back', async () => {
     // A lesson carrying both the near-duplicate and the approved tag: after the merge it carries one.
     const both = await addLesson(['adc-only-pin', 'analog-only-pin'], 'Heron: A6 and A7 are ADC only.');
+    // Errata too: one with the near-duplicate only, one with both.
+    const board = await owner.agent
+      .post(`/api/projects/${slug}/board-revisions`)
+      .set(owner.headers)
+      .send({ label: 'Rev A' })
+      .expect(201);
+    const erratum = (title: string, tags: string[]) =>
+      owner.agent
+        .post(`/api/projects/${slug}/errata`)
+        .set(owner.headers)
+        .send({ title, category: 'pin-capability', severity: 'major', status: 'open', affected: [board.body.id], tags })
+        .expect(201);
+    const onlyAdc = (await erratum('Heron relay on A7', ['adc-only-pin'])).body as { id: number };
+    const bothErratum = (await erratum('Heron LED on A6', ['adc-only-pin', 'analog-only-pin'])).body as { id: number };
     const before = await tagSets();
     const adcUses = await usesOfSlug('adc-only-pin');
     const analogUses = await usesOfSlug('analog-only-pin');
-    expect(adcUses).toBeGreaterThanOrEqual(2); // the demo lesson by juniper-okoye and Heron's
+    expect(adcUses).toBeGreaterThanOrEqual(4); // the demo lesson by juniper-okoye, Heron's lesson and errata
     const pageBefore = (await moderator.agent.get('/api/tags/analog-only-pin').expect(200)).body;
     const adcPage = (await moderator.agent.get('/api/tags/adc-only-pin').expect(200)).body;
 
@@ -207,14 +221,19 @@ describe('merging the demo near-duplicate', () => {
       .send({ into: 'analog-only-pin', reason: 'Same idea: pins that can only be ADC inputs' })
       .expect(200);
     expect(merged.body.mergedInto).toBe('analog-only-pin');
-    expect(merged.body.retagged.lessons).toBe(adcUses);
+    expect(merged.body.retagged.lessons).toBe(adcUses - 2);
 
     expect(await usesOfSlug('adc-only-pin')).toBe(0);
-    // Each subject carries the tag once: the lesson that had both counts once.
-    expect(await usesOfSlug('analog-only-pin')).toBe(analogUses + adcUses - 1);
+    // Each subject carries the tag once: the lesson and the erratum that had both count once.
+    expect(await usesOfSlug('analog-only-pin')).toBe(analogUses + adcUses - 2);
     expect(await lessonTagSlugs(both.id)).toEqual(['analog-only-pin']);
+    const afterMerge = await tagSets();
+    expect(afterMerge[`erratum:${onlyAdc.id}`]).toEqual(['analog-only-pin']);
+    expect(afterMerge[`erratum:${bothErratum.id}`]).toEqual(['analog-only-pin']);
+    expect(merged.body.retagged.errata).toBe(2);
     const pageAfter = (await moderator.agent.get('/api/tags/analog-only-pin').expect(200)).body;
     expect(pageAfter.tag.counts.lessons).toBe(pageBefore.tag.counts.lessons + adcPage.tag.counts.lessons - 1);
+    expect(pageAfter.tag.counts.errata).toBe(pageBefore.tag.counts.errata + 1);
     expect(pageAfter.tag.aliases).toContain('adc-only-pin');
     expect(pageAfter.mergedFrom).toEqual([{ slug: 'adc-only-pin', name: expect.any(String) }]);
 
