@@ -170,6 +170,26 @@ export const routes = [
     component: () => import('@/pages/LevelCheckPage.vue'),
     meta: { title: 'Level check' },
   },
+  { path: '/tags', name: 'tags', component: () => import('@/pages/TagsPage.vue'), meta: { title: 'Tags' } },
+  { path: '/tags/:tagSlug', name: 'tag', component: () => import('@/pages/TagPage.vue'), meta: { title: 'Tag' } },
+  {
+    path: '/moderation',
+    name: 'moderation-queue',
+    component: () => import('@/pages/ModerationQueuePage.vue'),
+    meta: { requires: 'moderator', title: 'Flagged content' },
+  },
+  {
+    path: '/moderation/tags',
+    name: 'moderation-tags',
+    component: () => import('@/pages/ModerationTagsPage.vue'),
+    meta: { requires: 'moderator', title: 'Tag curation' },
+  },
+  {
+    path: '/moderation/audit',
+    name: 'audit-log',
+    component: () => import('@/pages/AuditLogPage.vue'),
+    meta: { requires: 'moderator', title: 'Audit log' },
+  },
   {
     path: '/:pathMatch(.*)*',
     name: 'not-found',

@@ -63,6 +63,11 @@ export interface RouteNamedMap {
   parts: RouteRecordInfo<'parts', '/parts', NoParams, NoParams>;
   part: RouteRecordInfo<'part', '/parts/:partSlug', { partSlug: string }, { partSlug: string }>;
   'level-check': RouteRecordInfo<'level-check', '/tools/level-check', NoParams, NoParams>;
+  tags: RouteRecordInfo<'tags', '/tags', NoParams, NoParams>;
+  tag: RouteRecordInfo<'tag', '/tags/:tagSlug', { tagSlug: string }, { tagSlug: string }>;
+  'moderation-queue': RouteRecordInfo<'moderation-queue', '/moderation', NoParams, NoParams>;
+  'moderation-tags': RouteRecordInfo<'moderation-tags', '/moderation/tags', NoParams, NoParams>;
+  'audit-log': RouteRecordInfo<'audit-log', '/moderation/audit', NoParams, NoParams>;
   'not-found': RouteRecordInfo<
     'not-found',
     '/:pathMatch(.*)*',

@@ -58,6 +58,7 @@ async function mountLessons() {
     routes: [
       { path: '/', component: { template: '<div />' } },
       { path: '/projects/:slug/errata/:code', name: 'erratum', component: { template: '<div />' } },
+      { path: '/tags/:tagSlug', name: 'tag', component: { template: '<div />' } },
     ],
   });
   await router.push('/');
@@ -91,7 +92,8 @@ describe('ProjectLessons', () => {
       [false, 'approved'],
       [true, 'pending'],
     ]);
-    expect(item.get('a').attributes('href')).toBe('/projects/greenhouse-node/errata/E1');
+    expect(tags[0]!.attributes('href')).toBe('/tags/input-only-pin');
+    expect(item.get('a[href*="/errata/"]').attributes('href')).toBe('/projects/greenhouse-node/errata/E1');
     expect(buttons('Add a lesson')).toHaveLength(0);
     expect(buttons('Edit')).toHaveLength(0);
   });
