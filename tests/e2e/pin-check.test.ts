@@ -36,7 +36,9 @@ describe('checks in the browser', () => {
     const n = before + 1;
     await revB.getByLabel(`Pin, row ${n}`, { exact: true }).fill('A7');
     await revB.getByLabel(`Signal, row ${n}`, { exact: true }).fill('Alarm buzzer');
-    await expect.poll(() => revB.getByLabel(`Required function, row ${n}`, { exact: true }).inputValue()).toBe('Digital out');
+    await expect
+      .poll(() => revB.getByLabel(`Required function, row ${n}`, { exact: true }).inputValue())
+      .toBe('Digital out');
     await revB.getByTestId('check-pins').click();
 
     // Microchip ATmega328P datasheet (DS40002061), 1.1 Pin Descriptions: ADC7:6 (TQFP and VFQFN
@@ -52,7 +54,10 @@ describe('checks in the browser', () => {
     await revB.getByTestId('save-pin-map').click();
     await revB.getByTestId('unsaved').waitFor({ state: 'detached' });
     await page.reload();
-    await revB.getByTestId('pin-map-row').nth(n - 1).waitFor();
+    await revB
+      .getByTestId('pin-map-row')
+      .nth(n - 1)
+      .waitFor();
     expect(await revB.getByLabel(`Pin, row ${n}`, { exact: true }).inputValue()).toBe('A7');
     await revB.getByTestId('check-pins').click();
 
@@ -89,7 +94,9 @@ describe('checks in the browser', () => {
 
     await page.getByTestId('build-add').click();
     await page.getByLabel('Build', { exact: true }).fill('v0.13 smaller menu');
-    await page.getByLabel('What this build changed (for the ledger)').fill('Dropped the help texts from the serial menu.');
+    await page
+      .getByLabel('What this build changed (for the ledger)')
+      .fill('Dropped the help texts from the serial menu.');
     // The layout `avr-size -A` prints: section, size, address, then the total.
     const report = [
       'vent-controller.ino.elf  :',
