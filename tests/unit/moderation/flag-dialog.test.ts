@@ -85,7 +85,10 @@ describe('FlagButton and its dialog', () => {
 
   it('sends the target, the reason and the text, then thanks the member', async () => {
     const api = fakeApi({
-      'POST /api/flags': (call) => ({ status: 201, body: { flag: flag(call.body as object), repeated: false } }),
+      'POST /api/flags': (call) => ({
+        status: 201,
+        body: { flag: flag(call.body as Record<string, unknown>), repeated: false },
+      }),
     });
     await mountButton();
     await openDialog();
