@@ -4,6 +4,7 @@ import {
   partParamsSchema,
   partRevisionListSchema,
   partUpdateSchema,
+  partCreateSchema,
 } from '../../shared/contracts/checks';
 import type { AppContext } from '../context';
 import { access, type ApiRoutes } from '../http/routes';
@@ -35,6 +36,20 @@ export function registerPartRoutes(routes: ApiRoutes, ctx: AppContext) {
       response: partPageSchema,
     },
     ({ user, params }) => service.partPage(ctx, user, params.partSlug),
+  );
+
+  routes.post(
+    '/parts',
+    {
+      summary: 'Add a part to the library (moderators; revision 1 of its profile)',
+      tag,
+      access: access.moderator,
+      body: partCreateSchema,
+      response: partPageSchema,
+      status: 201,
+      before: [writes],
+    },
+    ({ user, body }) => service.createPart(ctx, user!, body),
   );
 
   routes.put(

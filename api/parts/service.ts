@@ -6,7 +6,7 @@
  * its source belong together).
  */
 import { and, eq } from 'drizzle-orm';
-import type { PartList, PartPage, PartRevisionList, PartUpdate } from '../../shared/contracts/checks';
+import type { PartCreate, PartList, PartPage, PartRevisionList, PartUpdate } from '../../shared/contracts/checks';
 import type { EditConflict } from '../../shared/contracts/projects';
 import { parts, revisions } from '../../db/schema';
 import { canonicalJson, partColumns, profileHash } from '../../db/parts/seed';
@@ -140,6 +140,43 @@ export async function updatePart(
     });
   });
   return partPage(ctx, user, slug);
+}
+
+/** A moderator adds a part: revision 1, authored by them; a taken slug is a 409. */
+export async function createPart(
+  ctx: AppContext,
+  user: AuthUser,
+  input: Omit<PartCreate, 'profile'> & { profile: q.PartRow['profile'] },
+): Promise<PartPage> {
+  const { profile } = input;
+  await ctx.db.transaction(async (tx) => {
+    const [created] = await tx
+      .insert(parts)
+      .values({ ...partColumns(profile), currentRevision: 1 })
+      .onConflictDoNothing({ target: parts.slug })
+      .returning({ id: parts.id });
+    if (!created) throw fail.conflict(`A part with the slug "${profile.slug}" is already in the library.`);
+    await tx.insert(revisions).values({
+      subject: 'part',
+      subjectId: created.id,
+      projectId: null,
+      number: 1,
+      parentNumber: null,
+      authorId: user.id,
+      message: input.note,
+      fields: profile,
+      contentHash: profileHash(profile),
+      origin: 'create',
+    });
+    await appendAudit(tx, {
+      actorId: user.id,
+      action: 'part.create',
+      targetKind: 'part',
+      targetId: created.id,
+      after: { slug: profile.slug, name: profile.name, note: input.note },
+    });
+  });
+  return partPage(ctx, user, profile.slug);
 }
 
 export async function partRevisionList(ctx: AppContext, slug: string): Promise<PartRevisionList> {

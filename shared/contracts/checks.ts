@@ -6,6 +6,7 @@
  * Routes (all JSON; unsafe methods need the CSRF token):
  *   GET    /api/parts                                  public      → PartList
  *   GET    /api/parts/:partSlug                        public      → PartPage
+ *   POST   /api/parts                                  moderator+  PartCreate → PartPage (201; 409 conflict when the slug is taken)
  *   PUT    /api/parts/:partSlug                        moderator+  PartUpdate → PartPage (409 edit_conflict)
  *   GET    /api/parts/:partSlug/revisions              public      → PartRevisionList
  *   GET    /api/projects/:slug/pin-maps                project read → PinMapList
@@ -85,6 +86,15 @@ export const partUpdateSchema = z
   })
   .meta({ id: 'PartUpdate' });
 export type PartUpdate = z.input<typeof partUpdateSchema>;
+
+export const partCreateSchema = z
+  .strictObject({
+    profile: partProfileSchema,
+    /** Where the values come from, for the first revision. */
+    note: z.string().trim().min(3).max(500),
+  })
+  .meta({ id: 'PartCreate' });
+export type PartCreate = z.input<typeof partCreateSchema>;
 
 export const partRevisionListSchema = z
   .object({
@@ -188,7 +198,12 @@ export const buildCreateSchema = z
     reportText: z.string().min(1).max(MAX_SIZE_REPORT_CHARS),
     /** Which file, when the report lists more than one. */
     filename: z.string().trim().min(1).max(200).optional(),
-    bootloaderBytes: z.number().int().min(0).max(16 * 1024 * 1024).default(0),
+    bootloaderBytes: z
+      .number()
+      .int()
+      .min(0)
+      .max(16 * 1024 * 1024)
+      .default(0),
   })
   .meta({ id: 'BuildCreate' });
 export type BuildCreate = z.input<typeof buildCreateSchema>;

@@ -201,9 +201,9 @@ describe('correcting a part (moderators)', () => {
   const body = async (over: Record<string, unknown> = {}) => {
     const page = await t.agent().get('/api/parts/esp32').expect(200);
     return {
-      profile: { ...page.body.profile, aliases: [...page.body.profile.aliases, 'ESP32-WROOM'] },
+      profile: { ...page.body.profile, aliases: [...page.body.profile.aliases, 'ESP32-D0WD'] },
       baseRevision: page.body.revision,
-      note: 'Added the module name the tide clock errata use',
+      note: 'Added the chip marking as an alias',
       ...over,
     };
   };
@@ -223,9 +223,9 @@ describe('correcting a part (moderators)', () => {
       .send(await body())
       .expect(200);
     expect(res.body.revision).toBe(2);
-    expect(res.body.profile.aliases).toContain('ESP32-WROOM');
+    expect(res.body.profile.aliases).toContain('ESP32-D0WD');
     expect(res.body.viewer.canEdit).toBe(true);
-    // With the alias, the tide clock's errata that name "ESP32-WROOM" now mention the part.
+    // The tide clock's errata name "ESP32-WROOM", an alias shipped with the profile.
     expect((res.body.mentions as Mention[]).some((m) => m.projectSlug === 'tide-clock')).toBe(true);
     const seeded = await seedParts(t.database.db);
     expect(seeded.kept).toContain('esp32');
@@ -235,7 +235,7 @@ describe('correcting a part (moderators)', () => {
     const history = await t.agent().get('/api/parts/esp32/revisions').expect(200);
     expect(history.body.items.map((r: { number: number }) => r.number)).toEqual([2, 1]);
     expect(history.body.items[0]).toMatchObject({
-      note: 'Added the module name the tide clock errata use',
+      note: 'Added the chip marking as an alias',
       author: { handle: 'odile-fenwick' },
     });
     expect(history.body.items[1].author).toBeNull();
@@ -269,5 +269,43 @@ describe('correcting a part (moderators)', () => {
       .expect(403);
     expect(noCsrf.body.error.code).toBe('csrf_failed');
     expect((await t.agent().get('/api/parts/esp32')).body.revision).toBe(2);
+  });
+});
+
+describe('adding a part (moderators)', () => {
+  const newPart = async () => {
+    // A copy of a shipped logic family under a new slug stands in for a moderator's new entry.
+    const family = (await t.agent().get('/api/parts/74hct').expect(200)).body.profile;
+    return {
+      profile: { ...family, slug: '74hct-second-source', name: '74HCT (second source)', aliases: [] },
+      note: 'Second-source datasheet',
+    };
+  };
+
+  it('adds a part as revision 1 authored by the moderator, lists it, and refuses a taken slug with 409', async () => {
+    const input = await newPart();
+    await maker.agent.post('/api/parts').set(maker.headers).send(input).expect(403);
+    const res = await moderator.agent.post('/api/parts').set(moderator.headers).send(input).expect(201);
+    expect(res.body).toMatchObject({
+      revision: 1,
+      profile: { slug: '74hct-second-source', name: '74HCT (second source)' },
+    });
+    const list = await t.agent().get('/api/parts').expect(200);
+    expect(list.body.items.map((p: { slug: string }) => p.slug)).toContain('74hct-second-source');
+    const history = await t.agent().get('/api/parts/74hct-second-source/revisions').expect(200);
+    expect(history.body.items).toEqual([
+      expect.objectContaining({
+        number: 1,
+        note: 'Second-source datasheet',
+        author: expect.objectContaining({ handle: 'odile-fenwick' }),
+      }),
+    ]);
+    const again = await moderator.agent.post('/api/parts').set(moderator.headers).send(input).expect(409);
+    expect(again.body.error.code).toBe('conflict');
+    const invalid = await newPart();
+    invalid.profile = { ...invalid.profile, slug: 'Not A Slug' };
+    expect(
+      (await moderator.agent.post('/api/parts').set(moderator.headers).send(invalid).expect(400)).body.error.code,
+    ).toBe('validation_failed');
   });
 });
