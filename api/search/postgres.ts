@@ -21,8 +21,8 @@ import { normalizeForSearch, vocabularyOf } from '../../shared/search/normalize'
 import type { SearchBackend, SearchViewer } from './backend';
 import type { SearchDocument } from './documents';
 
-export const CANDIDATES = 2000;
-export const TITLE_CANDIDATES = 500;
+export const CANDIDATES = 600;
+export const TITLE_CANDIDATES = 200;
 /** Bodies are kept whole in the tsvector; the stored copy only feeds snippets. */
 const SNIPPET_SOURCE_CHARS = 20_000;
 const UPSERT_BATCH = 200;
