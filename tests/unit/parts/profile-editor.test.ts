@@ -61,7 +61,7 @@ describe('correcting a part profile', { timeout: 30_000 }, () => {
 
   it('sends the corrected profile on top of the revision it opened, then reports it saved', async () => {
     const corrected = { ...profile('74hc'), summary: 'High-speed CMOS, corrected summary' };
-    const api = fakeApi({ 'PUT /api/parts/74hc': () => json(partPage('74hc', { revision: 4 }))() });
+    const api = fakeApi({ 'PUT /api/parts/74hc': json(partPage('74hc', { revision: 4 })) });
     const w = open();
     await setJson(w, JSON.stringify(corrected));
     await setNote(w, 'Summary from the family overview');

@@ -62,6 +62,7 @@ async function open() {
     history: createMemoryHistory(),
     routes: [
       { path: '/', name: 'home', component: stub },
+      { path: '/tools/level-check', name: 'level-check', component: stub },
       { path: '/projects/:slug', name: 'project', component: stub },
       { path: '/projects/:slug/settings', name: 'project-settings', component: stub },
       { path: '/projects/:slug/pin-maps', name: 'project-pin-maps', component: ProjectPinMapsPage },
@@ -214,6 +215,16 @@ describe('ProjectPinMapsPage', { timeout: 60_000 }, () => {
       baseRevision: 5,
     });
     expect(wrapper.find('[data-testid="pin-map-conflict"]').exists()).toBe(false);
+  });
+
+  it('links each way of a connection to the level check with the part and its supply', async () => {
+    fakeApi(answers());
+    const { wrapper } = await open();
+    // The map states no supply, so the ATmega328P's nominal 5 V applies (db/parts/atmega328p.json).
+    const asDriver = wrapper.get('[data-testid="levels-as-driver"]');
+    const asReceiver = wrapper.get('[data-testid="levels-as-receiver"]');
+    expect(asDriver.attributes('href')).toBe('/tools/level-check?driver=atmega328p&driverV=5');
+    expect(asReceiver.attributes('href')).toBe('/tools/level-check?receiver=atmega328p&receiverV=5');
   });
 
   it('shows readers the rows without inputs, and they can still run the check', async () => {
