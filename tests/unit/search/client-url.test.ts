@@ -107,6 +107,8 @@ describe('the search address', () => {
       part: [],
       project: [],
       mistakes: true,
+      // The page declines a correction itself and never asks the API to search exactly.
+      exact: false,
       page: 3,
       pageSize: 20,
     });

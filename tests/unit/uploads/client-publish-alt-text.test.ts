@@ -64,6 +64,9 @@ async function open() {
     routes: [
       { path: '/projects/:slug', name: 'project', component: ProjectPage },
       { path: '/projects/:slug/gallery', name: 'project-gallery', component: stub },
+      { path: '/projects/:slug/pin-maps', name: 'project-pin-maps', component: stub },
+      { path: '/projects/:slug/memory', name: 'project-memory', component: stub },
+      { path: '/tags/:tagSlug', name: 'tag', component: stub },
       { path: '/projects/:slug/history', name: 'project-history', component: stub },
       { path: '/projects/:slug/settings', name: 'project-settings', component: stub },
       { path: '/', name: 'home', component: stub },
