@@ -1,4 +1,4 @@
-import { and, asc, count, eq, inArray, isNull, sql } from 'drizzle-orm';
+import { and, asc, count, eq, inArray, isNull, notInArray, sql } from 'drizzle-orm';
 import type { DbOrTx } from '../../db/client';
 import {
   boardRevisions,
@@ -104,10 +104,19 @@ export async function writeErratum(
   return updated.length === 1;
 }
 
+/** Like the lessons' setTags: kept links keep their original tag, for an unmerge after a save. */
 export async function setErratumTags(db: DbOrTx, erratumId: number, tagIds: number[]) {
-  await db.delete(erratumTags).where(eq(erratumTags.subjectId, erratumId));
-  if (tagIds.length) {
-    await db.insert(erratumTags).values(tagIds.map((tagId) => ({ subjectId: erratumId, tagId, originalTagId: tagId })));
+  const wanted = [...new Set(tagIds)];
+  await db
+    .delete(erratumTags)
+    .where(
+      and(eq(erratumTags.subjectId, erratumId), wanted.length ? notInArray(erratumTags.tagId, wanted) : undefined),
+    );
+  if (wanted.length) {
+    await db
+      .insert(erratumTags)
+      .values(wanted.map((tagId) => ({ subjectId: erratumId, tagId, originalTagId: tagId })))
+      .onConflictDoNothing();
   }
 }
 

@@ -3,7 +3,7 @@
  * errata. Body and erratum links are versioned (revisions, no lost updates); tags ride along
  * like on errata, since moderators curate them separately.
  */
-import { and, asc, eq, inArray, isNull, max, sql } from 'drizzle-orm';
+import { and, asc, eq, inArray, isNull, max, notInArray, sql } from 'drizzle-orm';
 import type { Lesson, LessonInput, LessonList } from '../../shared/contracts/errata';
 import { lessonInputSchema } from '../../shared/contracts/errata';
 import type { ProjectRole } from '../../shared/domain';
@@ -51,10 +51,20 @@ async function linkErrata(tx: Tx, lessonId: number, erratumIds: number[]) {
   if (erratumIds.length) await tx.insert(lessonErrata).values(erratumIds.map((erratumId) => ({ lessonId, erratumId })));
 }
 
+/**
+ * The lesson's tags become `tagIds`. Links it keeps stay as they are, so a link a merge moved
+ * still knows its original tag and an unmerge can put it back after the lesson was saved again.
+ */
 async function setTags(tx: Tx, lessonId: number, tagIds: number[]) {
-  await tx.delete(lessonTags).where(eq(lessonTags.subjectId, lessonId));
-  if (tagIds.length)
-    await tx.insert(lessonTags).values(tagIds.map((tagId) => ({ subjectId: lessonId, tagId, originalTagId: tagId })));
+  const wanted = [...new Set(tagIds)];
+  await tx
+    .delete(lessonTags)
+    .where(and(eq(lessonTags.subjectId, lessonId), wanted.length ? notInArray(lessonTags.tagId, wanted) : undefined));
+  if (wanted.length)
+    await tx
+      .insert(lessonTags)
+      .values(wanted.map((tagId) => ({ subjectId: lessonId, tagId, originalTagId: tagId })))
+      .onConflictDoNothing();
 }
 
 async function present(ctx: AppContext, rows: LessonRow[]): Promise<Lesson[]> {

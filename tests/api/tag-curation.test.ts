@@ -260,6 +260,35 @@ describe('merging the demo near-duplicate', () => {
     expect(analogAgain.tag.counts).toEqual(pageBefore.tag.counts);
   });
 
+  it('puts a lesson back on its tag at unmerge even after the lesson was saved again in between', async () => {
+    const s = await pendingTag(`Heron resaved ${++counter}`);
+    await moderator.agent.post(`/api/tags/${s}/approve`).set(moderator.headers).send({}).expect(200);
+    const lesson = await addLesson([s], 'Heron resaved: the ADC pins cannot drive anything.');
+    await moderator.agent
+      .post(`/api/tags/${s}/merge`)
+      .set(moderator.headers)
+      .send({ into: 'analog-only-pin', reason: 'Duplicate' })
+      .expect(200);
+    expect(await lessonTagSlugs(lesson.id)).toEqual(['analog-only-pin']);
+    // The owner edits the lesson's text, keeping its (now merged) tag.
+    const saved = await owner.agent
+      .put(`/api/projects/${slug}/lessons/${lesson.id}`)
+      .set(owner.headers)
+      .send({
+        body: 'Heron resaved: the ADC pins cannot drive anything, not even an LED.',
+        tags: ['analog-only-pin'],
+        baseRevision: lesson.revision,
+      })
+      .expect(200);
+    expect(saved.body.outcome).toBeDefined();
+    await moderator.agent
+      .post(`/api/tags/${s}/unmerge`)
+      .set(moderator.headers)
+      .send({ reason: 'Kept apart' })
+      .expect(200);
+    expect(await lessonTagSlugs(lesson.id)).toEqual([s]);
+  });
+
   it('lets a member who types the merged name get the surviving tag', async () => {
     const s = await pendingTag(`Heron typed ${++counter}`);
     await moderator.agent
