@@ -17,6 +17,7 @@ import {
   projects,
   tagAliases,
   tags,
+  parts,
 } from '../../db/schema';
 import type { SearchKind } from '../../shared/contracts/search';
 import { codeLexemes } from '../../shared/search/normalize';
@@ -46,7 +47,7 @@ export interface SearchDocument {
 }
 
 /** The outbox kinds and what they stand for. */
-export type OutboxKind = 'project' | 'document' | 'erratum' | 'lesson' | 'tag';
+export type OutboxKind = 'project' | 'document' | 'erratum' | 'lesson' | 'tag' | 'part';
 
 type ProjectInfo = { id: number; slug: string; title: string; visible: boolean };
 
@@ -262,6 +263,42 @@ export async function buildTags(db: DbOrTx, ids: number[]): Promise<Map<number, 
       updatedAt: t.updatedAt,
       weighted: { a: names.join(' '), b: t.description, c: '', d: '' },
       codes: { a: codeLexemes(names.join(' ')), c: [] },
+    });
+  }
+  return out;
+}
+
+/**
+ * Parts of the library: found by name, alias and what they are. Their pin labels stay out of the
+ * text, so a pin label finds the errata about that pin first; the part page lists those anyway.
+ */
+export async function buildParts(db: DbOrTx, ids: number[]): Promise<Map<number, SearchDocument | null>> {
+  const out = new Map<number, SearchDocument | null>(ids.map((id) => [id, null]));
+  if (!ids.length) return out;
+  const rows = await db.select().from(parts).where(inArray(parts.id, ids));
+  for (const p of rows) {
+    const profile = p.profile as { summary?: string; datasheets?: { title: string }[] };
+    const names = [p.name, ...p.aliases].join(' ');
+    const summary = profile.summary ?? '';
+    out.set(p.id, {
+      kind: 'part',
+      refId: p.id,
+      projectId: null,
+      visible: true,
+      title: p.name,
+      body: summary,
+      url: `/parts/${p.slug}`,
+      projectSlug: null,
+      projectTitle: null,
+      category: null,
+      severity: null,
+      status: null,
+      tags: [],
+      parts: [p.name],
+      pins: [],
+      updatedAt: p.updatedAt,
+      weighted: { a: names, b: summary, c: (profile.datasheets ?? []).map((d) => d.title).join(' '), d: '' },
+      codes: { a: codeLexemes(names), c: [] },
     });
   }
   return out;

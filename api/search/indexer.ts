@@ -14,6 +14,7 @@ import {
   buildLessons,
   buildProjects,
   buildTags,
+  buildParts,
   childrenOfProjects,
   itemsWithTags,
   type OutboxKind,
@@ -71,6 +72,7 @@ async function processBatch(tx: Tx, limit: number): Promise<{ claimed: number; u
     ['erratum', await buildErrata(tx, ids('erratum'))],
     ['lesson', await buildLessons(tx, ids('lesson'))],
     ['tag', await buildTags(tx, tagIds)],
+    ['part', await buildParts(tx, ids('part'))],
   ];
   const upserts: SearchDocument[] = [];
   const removals: Ref[] = [];
@@ -105,7 +107,7 @@ export async function indexPending(ctx: AppContext, options: { secondary?: Searc
       } catch (error) {
         ctx.log.warn(`search: the secondary index refused a batch; it will be retried: ${(error as Error).message}`);
         await ctx.db.transaction(async (tx) => {
-          for (const kind of ['project', 'document', 'erratum', 'lesson', 'tag'] as const) {
+          for (const kind of ['project', 'document', 'erratum', 'lesson', 'tag', 'part'] as const) {
             const kinds = kind === 'document' ? ['section', 'log_entry'] : [kind];
             await enqueue(tx, kind, [...batch.upserts, ...batch.removals].filter((d) => kinds.includes(d.kind)).map((d) => d.refId));
           }
@@ -126,7 +128,7 @@ export async function queueEverything(ctx: AppContext, options: { clear?: boolea
       INSERT INTO search_outbox (kind, ref_id)
       SELECT 'project', id FROM projects UNION ALL SELECT 'document', id FROM documents
       UNION ALL SELECT 'erratum', id FROM errata UNION ALL SELECT 'lesson', id FROM lessons
-      UNION ALL SELECT 'tag', id FROM tags`);
+      UNION ALL SELECT 'tag', id FROM tags UNION ALL SELECT 'part', id FROM parts`);
   });
 }
 

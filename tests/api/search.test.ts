@@ -45,6 +45,15 @@ describe('searching the demo data', () => {
     expect(a.items.map((i) => i.url)).toEqual(b.items.map((i) => i.url));
   });
 
+  it('finds a part of the library by its name or an alias, linking to the part page', async () => {
+    const byName = await search('q=ATmega328P&kind=part');
+    expect(byName.items.map((i) => i.url)).toEqual(['/parts/atmega328p']);
+    const byAlias = await search(`q=${encodeURIComponent('WROOM-32')}&kind=part`);
+    expect(byAlias.items.map((i) => i.url)).toContain('/parts/esp32');
+    // A pin label still finds the erratum about that pin first, not the part that has the pin.
+    expect((await search('q=GPIO35')).items[0]!.kind).toBe('erratum');
+  });
+
   it('corrects a typo when nothing matches (atmaga328 → atmega328…)', async () => {
     const res = await search('q=atmaga328');
     expect(res.correctedQuery).toMatch(/^atmega328/);
