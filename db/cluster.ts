@@ -9,7 +9,10 @@ import path from 'node:path';
 import pg from 'pg';
 
 export const PG_BIN = process.env.PG_BIN ?? '/usr/lib/postgresql/15/bin';
-const INSTALL_COMMAND = 'apt-get update && apt-get install -y postgresql postgresql-contrib';
+const INSTALL_COMMAND = 'apt-get update && apt-get install -y postgresql postgresql-contrib postgresql-15-rum';
+/** Debian's package of the RUM index the search uses when it can (api/search/postgres.ts). */
+const RUM_PACKAGE = 'postgresql-15-rum';
+const RUM_CONTROL = process.env.PG_SHARE ? path.join(process.env.PG_SHARE, 'extension/rum.control') : '/usr/share/postgresql/15/extension/rum.control';
 
 const isRoot = () => typeof process.getuid === 'function' && process.getuid() === 0;
 
@@ -19,7 +22,10 @@ export class ClusterError extends Error {
 
 /** Make sure the server binaries exist; install them when running as root. */
 export function ensureServerBinaries(log: (line: string) => void = console.log): void {
-  if (fs.existsSync(path.join(PG_BIN, 'postgres'))) return;
+  if (fs.existsSync(path.join(PG_BIN, 'postgres'))) {
+    ensureRum(log);
+    return;
+  }
   if (!isRoot()) {
     throw new ClusterError(
       `PostgreSQL 15 server binaries were not found in ${PG_BIN}.\n` +
@@ -32,6 +38,21 @@ export function ensureServerBinaries(log: (line: string) => void = console.log):
   if (result.status !== 0 || !fs.existsSync(path.join(PG_BIN, 'postgres'))) {
     throw new ClusterError(`Installing PostgreSQL failed. Run it yourself:\n  ${INSTALL_COMMAND}`);
   }
+}
+
+/**
+ * The RUM extension is optional: search works without it, slower for words of middling
+ * frequency. Installed when missing and running as root; otherwise a hint.
+ */
+function ensureRum(log: (line: string) => void): void {
+  if (fs.existsSync(RUM_CONTROL)) return;
+  if (!isRoot()) {
+    log(`The RUM index extension is not installed; search uses GIN (slower at scale). As root: apt-get install -y ${RUM_PACKAGE}`);
+    return;
+  }
+  log(`Installing Debian's ${RUM_PACKAGE} (the search index extension) …`);
+  const result = spawnSync('sh', ['-c', `DEBIAN_FRONTEND=noninteractive apt-get install -y ${RUM_PACKAGE} || (apt-get update && DEBIAN_FRONTEND=noninteractive apt-get install -y ${RUM_PACKAGE})`], { stdio: 'inherit' });
+  if (result.status !== 0) log(`Installing ${RUM_PACKAGE} failed; search uses GIN (slower at scale).`);
 }
 
 /** Run a PostgreSQL binary, as the `postgres` system user when we are root (it refuses root). */
@@ -132,6 +153,23 @@ export function startCluster({ dataDir, port, log = console.log }: ClusterOption
   };
 }
 
+/**
+ * RUM is not a trusted extension: only a superuser may create it, so it is created here, before
+ * the migrations (run as the application role) look for it. Does nothing when not installed.
+ */
+export async function createRumExtension(databaseSuperuserUrl: string): Promise<boolean> {
+  const client = new pg.Client({ connectionString: databaseSuperuserUrl });
+  await client.connect();
+  try {
+    const available = await client.query(`SELECT 1 FROM pg_available_extensions WHERE name = 'rum'`);
+    if (!available.rowCount) return false;
+    await client.query('CREATE EXTENSION IF NOT EXISTS rum');
+    return true;
+  } finally {
+    await client.end();
+  }
+}
+
 /** Create the application role and database when missing; returns the application's URL. */
 export async function ensureDatabase(
   superuserUrl: string,
@@ -151,6 +189,9 @@ export async function ensureDatabase(
   } finally {
     await client.end();
   }
+  const inDatabase = new URL(superuserUrl);
+  inDatabase.pathname = `/${database}`;
+  await createRumExtension(inDatabase.toString());
   const url = new URL(superuserUrl);
   url.username = role;
   url.password = password;

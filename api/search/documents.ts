@@ -307,20 +307,17 @@ export async function buildParts(db: DbOrTx, ids: number[]): Promise<Map<number,
 /** Ids of everything a project's change may affect (its title and visibility are on each). */
 export async function childrenOfProjects(db: DbOrTx, projectIds: number[]) {
   if (!projectIds.length) return { documents: [], errata: [], lessons: [] };
-  const [docs, errs, less] = await Promise.all([
-    db.select({ id: documents.id }).from(documents).where(inArray(documents.projectId, projectIds)),
-    db.select({ id: errata.id }).from(errata).where(inArray(errata.projectId, projectIds)),
-    db.select({ id: lessons.id }).from(lessons).where(inArray(lessons.projectId, projectIds)),
-  ]);
+  // One after the other: inside a transaction there is one connection, which runs one query at a time.
+  const docs = await db.select({ id: documents.id }).from(documents).where(inArray(documents.projectId, projectIds));
+  const errs = await db.select({ id: errata.id }).from(errata).where(inArray(errata.projectId, projectIds));
+  const less = await db.select({ id: lessons.id }).from(lessons).where(inArray(lessons.projectId, projectIds));
   return { documents: docs.map((r) => r.id), errata: errs.map((r) => r.id), lessons: less.map((r) => r.id) };
 }
 
 /** Ids of the errata and lessons carrying one of these tags. */
 export async function itemsWithTags(db: DbOrTx, tagIds: number[]) {
   if (!tagIds.length) return { errata: [], lessons: [] };
-  const [errs, less] = await Promise.all([
-    db.selectDistinct({ id: erratumTags.subjectId }).from(erratumTags).where(inArray(erratumTags.tagId, tagIds)),
-    db.selectDistinct({ id: lessonTags.subjectId }).from(lessonTags).where(inArray(lessonTags.tagId, tagIds)),
-  ]);
+  const errs = await db.selectDistinct({ id: erratumTags.subjectId }).from(erratumTags).where(inArray(erratumTags.tagId, tagIds));
+  const less = await db.selectDistinct({ id: lessonTags.subjectId }).from(lessonTags).where(inArray(lessonTags.tagId, tagIds));
   return { errata: errs.map((r) => r.id), lessons: less.map((r) => r.id) };
 }

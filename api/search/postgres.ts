@@ -1,12 +1,15 @@
 /**
  * PostgreSQL full-text search, designed for the case that is slow by default: a common word
  * matching most of 100,000 rows, where ranking every match with ts_rank costs hundreds of
- * milliseconds. Instead a bounded candidate set is ranked in two passes:
+ * milliseconds. Instead a bounded candidate set is ranked in two passes, in one statement:
  *
  * 1. candidates: the newest CANDIDATES rows whose full text matches, plus the newest
  *    TITLE_CANDIDATES whose titles, part numbers or pin labels match (a small index, so strong
- *    matches are never crowded out by recency);
- * 2. ranking: ts_rank_cd with weights over the candidates only; facets over the same set.
+ *    matches are never crowded out by recency). The newest matches are found by walking the
+ *    updated_at index (common words) or through the RUM index, whose postings carry each item's
+ *    time (rarer words) — `chooseStrategy` says which from the planner's estimate;
+ * 2. ranking: ts_rank_cd with weights over the candidates only; the page, its highlighted
+ *    snippets and the facets over the same set.
  *
  * When fewer rows match than the bound, the result is exact; otherwise totals and facets say
  * they are approximate. Queries use websearch syntax (phrases, -exclusion, OR) over the English
@@ -21,8 +24,15 @@ import { normalizeForSearch, vocabularyOf } from '../../shared/search/normalize'
 import type { SearchBackend, SearchViewer } from './backend';
 import type { SearchDocument } from './documents';
 
-export const CANDIDATES = 600;
-export const TITLE_CANDIDATES = 200;
+export const CANDIDATES = 400;
+export const TITLE_CANDIDATES = 150;
+
+/** The candidate bounds; the benchmark widens them to measure what the bound costs in relevance. */
+export interface CandidateBounds {
+  candidates: number;
+  titleCandidates: number;
+}
+const DEFAULT_BOUNDS: CandidateBounds = { candidates: CANDIDATES, titleCandidates: TITLE_CANDIDATES };
 /** Bodies are kept whole in the tsvector; the stored copy only feeds snippets. */
 const SNIPPET_SOURCE_CHARS = 20_000;
 const UPSERT_BATCH = 200;
@@ -114,11 +124,35 @@ function textArray(values: readonly string[]): SQL {
   return sql`ARRAY(SELECT jsonb_array_elements_text(${JSON.stringify(values)}::jsonb))::text[]`;
 }
 
-type CandidateRow = {
-  id: number;
+/** How the newest matches are found: see `strategyFor`. */
+export type CandidateStrategy = 'walk' | 'rum';
+
+/** The RUM index of migration 0012, when the server has the extension. */
+export const RUM_INDEX = 'search_docs_tsv_rum_idx';
+
+/**
+ * What checking one row costs on the newest-first walk (fetching and matching its tsvector),
+ * in RUM items (what the RUM scan spends per match, sorting its matches by time). Measured on
+ * the 100,000-item benchmark corpus: about 8.6 µs against 0.27 µs (docs/benchmarks.md).
+ */
+export const WALK_COST_IN_RUM_ITEMS = 32;
+
+/**
+ * Newest-first walk or RUM scan. The walk reads the updated_at index from the newest item and
+ * checks each row until CANDIDATES match: cheap for a common word (nearly every row matches),
+ * slow for a word in one item of twenty (twenty rows read per match). The RUM scan collects every
+ * match from the index with its time and sorts them: cheap for a few thousand, slow for a word in
+ * every item. With M matches of N items the walk costs about CANDIDATES·N/M rows and the scan
+ * M items; the walk wins when M² ≥ CANDIDATES·N·WALK_COST_IN_RUM_ITEMS. M is the planner's
+ * estimate (EXPLAIN, from the column's statistics), N the table's row estimate.
+ */
+export function chooseStrategy(estimatedMatches: number, items: number, candidates = CANDIDATES): CandidateStrategy {
+  return estimatedMatches * estimatedMatches >= candidates * WALK_COST_IN_RUM_ITEMS * items ? 'walk' : 'rum';
+}
+
+type ItemJson = {
   kind: SearchHit['kind'];
-  ref_id: number;
-  rank: number;
+  id: number;
   title: string;
   url: string;
   project_slug: string | null;
@@ -129,57 +163,119 @@ type CandidateRow = {
   tags: string[];
   parts: string[];
   pins: string[];
-  updated_at: Date;
-  from_full: boolean;
+  updated_ms: number;
+  title_marked: string | null;
+  snippet_marked: string | null;
+};
+type FacetJson = Array<{ value: string; label: string | null; count: number }>;
+type StatementRow = {
+  total: number;
+  full_count: number;
+  items: ItemJson[];
+  kind: FacetJson;
+  category: FacetJson;
+  severity: FacetJson;
+  status: FacetJson;
+  tag: FacetJson;
+  part: FacetJson;
+  project: FacetJson;
 };
 
-function facet(values: Array<string | null | undefined>, label: (v: string) => string = (v) => v): Facet {
-  const counts = new Map<string, number>();
-  for (const v of values) if (v) counts.set(v, (counts.get(v) ?? 0) + 1);
-  return [...counts.entries()]
-    .sort((a, b) => b[1] - a[1] || a[0].localeCompare(b[0]))
-    .slice(0, 30)
-    .map(([value, count]) => ({ value, label: label(value), count }));
+const FACET_SIZE = 30;
+const HEADLINE_OPTIONS = `StartSel=${MARK_OPEN}, StopSel=${MARK_CLOSE}, MaxWords=30, MinWords=12, MaxFragments=2, FragmentDelimiter=" … "`;
+const TITLE_HEADLINE_OPTIONS = `StartSel=${MARK_OPEN}, StopSel=${MARK_CLOSE}, HighlightAll=true`;
+
+/** A facet's values and counts over the ranked candidates, commonest first. */
+function facetSql(values: SQL, label: SQL = sql`NULL::text`, join: SQL = sql``, extra: SQL = sql``): SQL {
+  return sql`(SELECT coalesce(json_agg(json_build_object('value', f.value, 'label', ${label}, 'count', f.count)
+      ORDER BY f.count DESC, f.value), '[]'::json)
+    FROM (SELECT r.v AS value, count(*)::int AS count ${extra} FROM ${values} GROUP BY r.v ORDER BY 2 DESC, 1 LIMIT ${FACET_SIZE}) f ${join})`;
 }
 
 /**
- * Pass one and two in one statement: the bounded candidate set and its ranks. Exported so the
- * benchmark can time the database's share of a search on its own.
+ * The whole search in one statement: the bounded candidate set (pass one), ranked (pass two),
+ * the page with its highlighted title and snippet, the total and every facet over the same set.
+ * Exported so the benchmark can time the database's share of a search on its own.
  */
-export function candidateQuery(query: SearchQuery, viewer: SearchViewer, text: string): SQL {
+export function searchStatement(
+  query: SearchQuery,
+  viewer: SearchViewer,
+  text: string,
+  strategy: CandidateStrategy,
+  bounds: CandidateBounds = DEFAULT_BOUNDS,
+): SQL {
   const tsquery = tsqueryFor(text);
   const where = sql`${visibleTo(viewer)} AND ${filtersOf(query)}`;
-  // Without words: browse the newest visible items under the filters.
   // The tsquery is written out where it is used, not taken from a CTE: the planner then sees
-  // the words and estimates how many rows match. A common word (most of the table) is read
-  // newest first through the updated_at index until the bound is reached; a rare one through
-  // the GIN index. Behind a CTE every query got the GIN plan, and a common word cost a bitmap
-  // scan over nearly every row.
+  // the words and estimates how many rows match.
   const q = tsquery ? sql`(${tsquery})` : sql`''::tsquery`;
+  // Without words: browse the newest visible items under the filters.
   const matchFull = tsquery ? sql`d.tsv @@ ${q}` : sql`true`;
-  // Titles must match the whole query too (an exclusion may rest on words outside the title).
-  const matchTitle = tsquery ? sql`d.title_tsv @@ ${q} AND d.tsv @@ ${q}` : sql`false`;
-  const rank = tsquery ? sql`ts_rank_cd('{0.1,0.2,0.4,1.0}', d.tsv, ${q})` : sql`0`;
+  // Newest first: through the RUM index's attached times (distance to a date far ahead), or
+  // by walking the updated_at index (the planner may also take GIN without RUM).
+  const order =
+    strategy === 'rum' && tsquery ? sql`d.updated_at <=| '9999-12-31'::timestamptz` : sql`d.updated_at DESC`;
+  // A title holds a subset of the item's words at the same positions, so a query without an
+  // exclusion that matches the title matches the item; with one, the item is checked too.
+  const excludes = /(^|\s)-\S/.test(normalizeForSearch(text));
+  const matchTitle = tsquery
+    ? excludes
+      ? sql`d.title_tsv @@ ${q} AND d.tsv @@ ${q}`
+      : sql`d.title_tsv @@ ${q}`
+    : sql`false`;
+  const rank = tsquery ? sql`ts_rank_cd('{0.1,0.2,0.4,1.0}', d.tsv, ${q})` : sql`0::real`;
+  const titleMarked = tsquery ? sql`ts_headline('english', p.title, ${q}, ${TITLE_HEADLINE_OPTIONS})` : sql`NULL::text`;
+  const snippetMarked = tsquery ? sql`ts_headline('english', d.body, ${q}, ${HEADLINE_OPTIONS})` : sql`NULL::text`;
   return sql`
       WITH full_hits AS (
-        SELECT d.id FROM search_docs d WHERE ${matchFull} AND ${where} ORDER BY d.updated_at DESC LIMIT ${CANDIDATES}
+        SELECT d.id FROM search_docs d WHERE ${matchFull} AND ${where} ORDER BY ${order} LIMIT ${bounds.candidates}
       ),
       title_hits AS (
-        SELECT d.id FROM search_docs d WHERE ${matchTitle} AND ${where} ORDER BY d.updated_at DESC LIMIT ${TITLE_CANDIDATES}
+        SELECT d.id FROM search_docs d WHERE ${matchTitle} AND ${where} ORDER BY d.updated_at DESC LIMIT ${bounds.titleCandidates}
       ),
       candidates AS (
         SELECT id, true AS from_full FROM full_hits
         UNION ALL SELECT id, false FROM title_hits WHERE id NOT IN (SELECT id FROM full_hits)
+      ),
+      ranked AS MATERIALIZED (
+        SELECT d.id, d.kind, d.ref_id, ${rank} AS rank, d.title, d.url, d.project_slug, d.project_title, d.category,
+               d.severity, d.status, d.tags, d.parts, d.pins, d.updated_at, c.from_full
+        FROM candidates c JOIN search_docs d ON d.id = c.id
+      ),
+      page AS (
+        SELECT * FROM ranked ORDER BY rank DESC, updated_at DESC, id DESC
+        LIMIT ${query.pageSize} OFFSET ${(query.page - 1) * query.pageSize}
       )
-      SELECT d.id, d.kind, d.ref_id, ${rank} AS rank, d.title, d.url, d.project_slug, d.project_title, d.category,
-             d.severity, d.status, d.tags, d.parts, d.pins, d.updated_at, c.from_full
-      FROM candidates c JOIN search_docs d ON d.id = c.id`;
+      SELECT
+        (SELECT count(*)::int FROM ranked) AS total,
+        (SELECT count(*)::int FROM ranked WHERE from_full) AS full_count,
+        (SELECT coalesce(json_agg(json_build_object(
+            'kind', p.kind, 'id', p.ref_id, 'title', p.title, 'url', p.url,
+            'project_slug', p.project_slug, 'project_title', p.project_title, 'category', p.category,
+            'severity', p.severity, 'status', p.status, 'tags', p.tags, 'parts', p.parts, 'pins', p.pins,
+            'updated_ms', extract(epoch FROM p.updated_at) * 1000,
+            'title_marked', ${titleMarked}, 'snippet_marked', ${snippetMarked}
+          ) ORDER BY p.rank DESC, p.updated_at DESC, p.id DESC), '[]'::json)
+         FROM page p JOIN search_docs d ON d.id = p.id) AS items,
+        ${facetSql(sql`(SELECT kind AS v FROM ranked) r`)} AS kind,
+        ${facetSql(sql`(SELECT category AS v FROM ranked WHERE category IS NOT NULL) r`, sql`c.name`, sql`LEFT JOIN categories c ON c.slug = f.value`)} AS category,
+        ${facetSql(sql`(SELECT severity AS v FROM ranked WHERE severity IS NOT NULL) r`)} AS severity,
+        ${facetSql(sql`(SELECT status AS v FROM ranked WHERE status IS NOT NULL) r`)} AS status,
+        ${facetSql(sql`(SELECT unnest(tags) AS v FROM ranked) r`, sql`t.name`, sql`LEFT JOIN tags t ON t.slug = f.value`)} AS tag,
+        ${facetSql(sql`(SELECT unnest(parts) AS v FROM ranked) r`)} AS part,
+        ${facetSql(sql`(SELECT project_slug AS v, project_title FROM ranked WHERE project_slug IS NOT NULL) r`, sql`f.label`, sql``, sql`, max(r.project_title) AS label`)} AS project`;
 }
+
+const toFacet = (rows: FacetJson, label: (row: FacetJson[number]) => string): Facet =>
+  rows.map((row) => ({ value: row.value, label: label(row), count: row.count }));
 
 export class PostgresSearch implements SearchBackend {
   readonly name = 'postgres' as const;
 
-  constructor(private readonly db: Db) {}
+  constructor(
+    private readonly db: Db,
+    private readonly bounds: CandidateBounds = DEFAULT_BOUNDS,
+  ) {}
 
   async upsert(docs: SearchDocument[]): Promise<void> {
     // Batched: one statement per UPSERT_BATCH documents, the tsvectors computed in SQL.
@@ -265,7 +361,8 @@ export class PostgresSearch implements SearchBackend {
   async search(query: SearchQuery, viewer: SearchViewer): Promise<SearchResult> {
     const first = await this.run(query, viewer, query.q);
     if (query.exact) return first;
-    if (first.total.value > 0 && first.total.value < query.pageSize && query.page === 1) return this.widen(query, viewer, first);
+    if (first.total.value > 0 && first.total.value < query.pageSize && query.page === 1)
+      return this.widen(query, viewer, first);
     if (first.total.value > 0 || !query.q.trim()) return first;
     // Nothing matched: try the closest known words for likely typos ("atmaga328" → atmega328p).
     const corrected = await this.correct(query.q);
@@ -274,6 +371,46 @@ export class PostgresSearch implements SearchBackend {
       if (second.total.value > 0) return { ...second, query: query.q, correctedQuery: corrected };
     }
     return { ...first, suggestions: await this.suggest(query.q) };
+  }
+
+  private rum: Promise<boolean> | null = null;
+  private items = { estimate: 0, at: 0 };
+
+  /** Whether the RUM index exists (looked up once). */
+  private hasRum(): Promise<boolean> {
+    this.rum ??= this.db
+      .execute<{ found: boolean }>(
+        sql`SELECT EXISTS (SELECT 1 FROM pg_indexes WHERE indexname = ${RUM_INDEX}) AS found`,
+      )
+      .then((r) => r.rows[0]?.found === true);
+    return this.rum;
+  }
+
+  /** The table's row estimate (from the statistics), read again after a minute. */
+  private async itemEstimate(): Promise<number> {
+    if (Date.now() - this.items.at > 60_000) {
+      const r = await this.db.execute<{ n: number }>(
+        sql`SELECT greatest(reltuples, 0)::float8 AS n FROM pg_class WHERE oid = 'search_docs'::regclass`,
+      );
+      this.items = { estimate: Number(r.rows[0]?.n ?? 0), at: Date.now() };
+    }
+    return this.items.estimate;
+  }
+
+  /** Walk or RUM scan for this text (see `chooseStrategy`). */
+  async strategyFor(text: string): Promise<CandidateStrategy> {
+    const tsquery = tsqueryFor(text);
+    if (!tsquery || !(await this.hasRum())) return 'walk';
+    const plan = await this.db.execute<{ 'QUERY PLAN': Array<{ Plan: { 'Plan Rows': number } }> }>(
+      sql`EXPLAIN (FORMAT JSON) SELECT 1 FROM search_docs d WHERE d.tsv @@ (${tsquery})`,
+    );
+    const estimate = plan.rows[0]?.['QUERY PLAN'][0]?.Plan['Plan Rows'] ?? 0;
+    return chooseStrategy(estimate, await this.itemEstimate(), this.bounds.candidates);
+  }
+
+  /** The statements a search runs, in order (the benchmark times them on the database). */
+  async statementFor(query: SearchQuery, viewer: SearchViewer, text: string): Promise<SQL> {
+    return searchStatement(query, viewer, text, await this.strategyFor(text), this.bounds);
   }
 
   private async run(query: SearchQuery, viewer: SearchViewer, text: string): Promise<SearchResult> {
@@ -289,30 +426,20 @@ export class PostgresSearch implements SearchBackend {
       facetsApproximate: false,
       backend: this.name,
     };
-    const result = await this.db.execute<CandidateRow>(candidateQuery(query, viewer, text));
-    const rows = result.rows;
-    if (!rows.length) return empty;
-    const fullCount = rows.filter((r) => r.from_full).length;
-    const capped = fullCount >= CANDIDATES;
-    rows.sort((a, b) => b.rank - a.rank || +new Date(b.updated_at) - +new Date(a.updated_at) || b.id - a.id);
-    const start = (query.page - 1) * query.pageSize;
-    const pageRows = rows.slice(start, start + query.pageSize);
-    const labels = await this.facetLabels(rows);
-    const highlights = pageRows.length
-      ? await this.highlight(
-          pageRows.map((r) => r.id),
-          text,
-        )
-      : new Map<number, { title: string; snippet: string }>();
+    const result = await this.db.execute<StatementRow>(await this.statementFor(query, viewer, text));
+    const row = result.rows[0];
+    if (!row || !row.total) return empty;
+    const capped = row.full_count >= this.bounds.candidates;
+    const same = (r: FacetJson[number]) => r.label ?? r.value;
     return {
       ...empty,
-      total: { value: rows.length, exact: !capped },
-      items: pageRows.map((r) => ({
+      total: { value: row.total, exact: !capped },
+      items: row.items.map((r) => ({
         kind: r.kind,
-        id: r.ref_id,
+        id: r.id,
         title: r.title,
-        titleHtml: highlights.get(r.id)?.title ?? escapeHtml(r.title),
-        snippetHtml: highlights.get(r.id)?.snippet ?? '',
+        titleHtml: r.title_marked === null ? escapeHtml(r.title) : markedHtml(r.title_marked),
+        snippetHtml: r.snippet_marked === null ? '' : markedHtml(r.snippet_marked),
         url: r.url,
         project: r.project_slug && r.project_title ? { slug: r.project_slug, title: r.project_title } : null,
         category: r.category,
@@ -321,43 +448,19 @@ export class PostgresSearch implements SearchBackend {
         tags: r.tags,
         parts: r.parts,
         pins: r.pins,
-        updatedAt: new Date(r.updated_at).toISOString(),
+        updatedAt: new Date(r.updated_ms).toISOString(),
       })),
       facets: {
-        kind: facet(
-          rows.map((r) => r.kind),
-          (v) => searchKindLabels[v as SearchHit['kind']] ?? v,
-        ),
-        category: facet(rows.map((r) => r.category), (v) => labels.categories.get(v) ?? v),
-        severity: facet(
-          rows.map((r) => r.severity),
-          (v) => severityLabels[v as Severity]?.split(' —')[0] ?? v,
-        ),
-        status: facet(
-          rows.map((r) => r.status),
-          (v) => erratumStatusLabels[v as ErratumStatus] ?? v,
-        ),
-        tag: facet(rows.flatMap((r) => r.tags), (v) => labels.tags.get(v) ?? v),
-        part: facet(rows.flatMap((r) => r.parts)),
-        project: facet(
-          rows.map((r) => r.project_slug),
-          (v) => rows.find((r) => r.project_slug === v)?.project_title ?? v,
-        ),
+        kind: toFacet(row.kind, (r) => searchKindLabels[r.value as SearchHit['kind']] ?? r.value),
+        category: toFacet(row.category, same),
+        severity: toFacet(row.severity, (r) => severityLabels[r.value as Severity]?.split(' —')[0] ?? r.value),
+        status: toFacet(row.status, (r) => erratumStatusLabels[r.value as ErratumStatus] ?? r.value),
+        tag: toFacet(row.tag, same),
+        part: toFacet(row.part, same),
+        project: toFacet(row.project, same),
       },
       facetsApproximate: capped,
     };
-  }
-
-  /** Display names of the categories and tags the facets list. */
-  private async facetLabels(rows: CandidateRow[]): Promise<{ categories: Map<string, string>; tags: Map<string, string> }> {
-    const tagSlugs = [...new Set(rows.flatMap((r) => r.tags))];
-    const [cats, tagRows] = await Promise.all([
-      this.db.execute<{ slug: string; name: string }>(sql`SELECT slug, name FROM categories`),
-      tagSlugs.length
-        ? this.db.execute<{ slug: string; name: string }>(sql`SELECT slug, name FROM tags WHERE slug IN (SELECT jsonb_array_elements_text(${JSON.stringify(tagSlugs)}::jsonb))`)
-        : Promise.resolve({ rows: [] as { slug: string; name: string }[] }),
-    ]);
-    return { categories: new Map(cats.rows.map((c) => [c.slug, c.name])), tags: new Map(tagRows.rows.map((t) => [t.slug, t.name])) };
   }
 
   /**
@@ -378,21 +481,6 @@ export class PostgresSearch implements SearchBackend {
       facets: loose.facets,
       facetsApproximate: loose.facetsApproximate,
     };
-  }
-
-  private async highlight(ids: number[], text: string): Promise<Map<number, { title: string; snippet: string }>> {
-    const tsquery = tsqueryFor(text);
-    if (!tsquery) return new Map();
-    const options = `StartSel=${MARK_OPEN}, StopSel=${MARK_CLOSE}, MaxWords=30, MinWords=12, MaxFragments=2, FragmentDelimiter=" … "`;
-    const rows = await this.db.execute<{ id: number; title: string; snippet: string }>(sql`
-      SELECT d.id,
-        ts_headline('english', d.title, ${tsquery}, ${`StartSel=${MARK_OPEN}, StopSel=${MARK_CLOSE}, HighlightAll=true`}) AS title,
-        ts_headline('english', d.body, ${tsquery}, ${options}) AS snippet
-      FROM search_docs d WHERE d.id IN (${sql.join(
-        ids.map((id) => sql`${id}`),
-        sql`, `,
-      )})`);
-    return new Map(rows.rows.map((r) => [r.id, { title: markedHtml(r.title), snippet: markedHtml(r.snippet) }]));
   }
 
   /** Replace each unknown word by the most similar known one, if any is close enough. */

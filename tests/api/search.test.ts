@@ -1,6 +1,10 @@
 import { sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { ANONYMOUS } from '../../api/search/backend';
+import type { SearchDocument } from '../../api/search/documents';
 import { indexPending, startSearchIndexer } from '../../api/search/indexer';
+import { chooseStrategy, PostgresSearch, RUM_INDEX, searchStatement } from '../../api/search/postgres';
+import { searchQuerySchema } from '../../shared/contracts/search';
 import { createTestApp, type SignedInAgent, type TestApp } from '../setup/app';
 
 let t: TestApp;
@@ -163,5 +167,89 @@ describe('keeping the index current', () => {
     await indexPending(t.ctx);
     const left = await t.ctx.db.execute(sql`SELECT count(*)::int AS n FROM search_outbox`);
     expect(left.rows[0]).toEqual({ n: 0 });
+  });
+});
+
+describe('finding the newest matches: the walk and the RUM scan', () => {
+  // Thirty items that share one made-up word, each a day newer than the last.
+  const docs = (): SearchDocument[] =>
+    Array.from({ length: 30 }, (_, i) => ({
+      kind: 'log_entry',
+      refId: 900_000 + i,
+      projectId: null,
+      visible: true,
+      title: `Bench note ${i}`,
+      body: `Tuesday: the wombatic relay chattered again (${i}).`,
+      url: `/notes/${i}`,
+      projectSlug: null,
+      projectTitle: null,
+      category: null,
+      severity: null,
+      status: null,
+      tags: [],
+      parts: [],
+      pins: [],
+      updatedAt: new Date(Date.UTC(2026, 0, 1 + i)),
+      weighted: { a: `Bench note ${i}`, b: '', c: '', d: `Tuesday: the wombatic relay chattered again (${i}).` },
+      codes: { a: [], c: [] },
+    }));
+  const refs = docs().map((d) => ({ kind: d.kind, refId: d.refId }));
+
+  beforeAll(async () => {
+    await new PostgresSearch(t.ctx.db).upsert(docs());
+  });
+  afterAll(async () => {
+    await new PostgresSearch(t.ctx.db).remove(refs);
+  });
+
+  it('has the RUM index in the test database (the extension is installed by .ci/run)', async () => {
+    const found = await t.ctx.db.execute(sql`SELECT 1 FROM pg_indexes WHERE indexname = ${RUM_INDEX}`);
+    expect(found.rows.length).toBe(1);
+  });
+
+  it('walks for a word in nearly every item and scans RUM for a word in a few', () => {
+    // 100,000 items, 400 candidates: the walk wins from about 35,800 estimated matches.
+    expect(chooseStrategy(100_000, 100_000)).toBe('walk');
+    expect(chooseStrategy(40_000, 100_000)).toBe('walk');
+    expect(chooseStrategy(30_000, 100_000)).toBe('rum');
+    expect(chooseStrategy(12, 100_000)).toBe('rum');
+    // A small table never walks: the RUM scan of every match is cheap there.
+    expect(chooseStrategy(2_000, 2_000)).toBe('rum');
+  });
+
+  it('takes the same newest candidates either way, newest first', async () => {
+    const query = searchQuerySchema.parse({ q: 'wombatic', pageSize: '10' });
+    const bounds = { candidates: 5, titleCandidates: 5 };
+    const newest = [29, 28, 27, 26, 25].map((i) => `/notes/${i}`);
+    for (const strategy of ['walk', 'rum'] as const) {
+      const { rows } = await t.ctx.db.execute<{ total: number; items: { url: string }[] }>(
+        searchStatement(query, ANONYMOUS, query.q, strategy, bounds),
+      );
+      expect(rows[0]!.total).toBe(5);
+      expect(new Set(rows[0]!.items.map((i) => i.url))).toEqual(new Set(newest));
+    }
+  });
+
+  it('answers the same through either strategy over the demo data', async () => {
+    for (const q of ['relay', 'GPIO35', 'regulator hot', '"analog input only"', 'relay -greenhouse', 'GPIO35 OR GP14']) {
+      const query = searchQuerySchema.parse({ q });
+      const answers = [];
+      for (const strategy of ['walk', 'rum'] as const) {
+        const { rows } = await t.ctx.db.execute<{ total: number; items: { url: string }[] }>(
+          searchStatement(query, ANONYMOUS, q, strategy),
+        );
+        answers.push({ total: rows[0]!.total, urls: rows[0]!.items.map((i) => i.url) });
+      }
+      expect(answers[0]!.total, q).toBeGreaterThan(0);
+      expect(answers[1], q).toEqual(answers[0]);
+    }
+  });
+
+  it('keeps an exclusion when only the title matches the other words', async () => {
+    // "Bench note" is in the titles; the excluded word only in the bodies.
+    const res = await search(`q=${encodeURIComponent('bench note -wombatic')}`);
+    expect(res.items.filter((i) => i.url.startsWith('/notes/'))).toEqual([]);
+    const kept = await search(`q=${encodeURIComponent('bench note')}`);
+    expect(kept.items.some((i) => i.url.startsWith('/notes/'))).toBe(true);
   });
 });

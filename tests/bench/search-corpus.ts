@@ -40,24 +40,27 @@ export const DEFAULT_CORPUS: CorpusSize = { projects: 100, errata: 60_000, logEn
 export async function buildCorpus(db: Db, size: CorpusSize = DEFAULT_CORPUS): Promise<void> {
   // The vocabulary is a constant of [a-z0-9] words, safe to write into the function's body.
   if (!WORDS.every((w) => /^[a-z0-9]+$/.test(w))) throw new Error('corpus words must be [a-z0-9]');
-  await db.execute(
-    sql.raw(`
+  // One transaction, so one session: random() follows the seed and the corpus is the same every build.
+  await db.transaction(async (tx) => {
+    await tx.execute(sql`SELECT setseed(0.2026)`);
+    await tx.execute(
+      sql.raw(`
     CREATE OR REPLACE FUNCTION bench_words(n int) RETURNS text LANGUAGE sql VOLATILE AS $$
       SELECT string_agg(v[1 + floor(power(random(), 3) * array_length(v, 1))::int], ' ')
       FROM (SELECT ARRAY['${WORDS.join("','")}'] AS v) vocab, generate_series(1, n)
     $$`),
-  );
-  const [owner] = (
-    await db.execute<{ id: number }>(sql`
+    );
+    const [owner] = (
+      await tx.execute<{ id: number }>(sql`
       INSERT INTO users (handle, display_name, role) VALUES ('corpus-maker', 'Corpus Maker', 'member') RETURNING id`)
-  ).rows;
-  await db.execute(sql`
+    ).rows;
+    await tx.execute(sql`
     INSERT INTO projects (slug, owner_id, title, summary, licence, status, published_at, next_erratum_number)
     SELECT 'corpus-' || g, ${owner!.id}, 'Corpus project ' || g || ' ' || bench_words(3), bench_words(15),
       'MIT', 'published', now(), 1
     FROM generate_series(1, ${size.projects}) g`);
-  const perProject = Math.ceil(size.errata / size.projects);
-  await db.execute(sql`
+    const perProject = Math.ceil(size.errata / size.projects);
+    await tx.execute(sql`
     INSERT INTO errata (project_id, number, title, category_slug, severity, status, symptom, cause, workaround, fix, parts, pins,
       current_revision, created_at, updated_at)
     SELECT p.id, n,
@@ -71,12 +74,13 @@ export async function buildCorpus(db: Db, size: CorpusSize = DEFAULT_CORPUS): Pr
       1, now() - (random() * interval '700 days'), now() - (random() * interval '700 days')
     FROM projects p CROSS JOIN generate_series(1, ${perProject}) n
     WHERE p.slug LIKE 'corpus-%'`);
-  const logsPerProject = Math.ceil(size.logEntries / size.projects);
-  await db.execute(sql`
+    const logsPerProject = Math.ceil(size.logEntries / size.projects);
+    await tx.execute(sql`
     INSERT INTO documents (project_id, kind, title, position, logged_on, body, current_revision, created_at, updated_at)
     SELECT p.id, 'log_entry', initcap(bench_words(5)), 0, (now() - (n || ' days')::interval)::date,
       bench_words(180), 1, now() - (random() * interval '700 days'), now() - (random() * interval '700 days')
     FROM projects p CROSS JOIN generate_series(1, ${logsPerProject}) n
     WHERE p.slug LIKE 'corpus-%'`);
-  await db.execute(sql`ANALYZE`);
+    await tx.execute(sql`ANALYZE`);
+  });
 }
