@@ -76,6 +76,9 @@ export function createApp(ctx: AppContext, options: AppOptions = {}): BuiltApp {
   app.disable('x-powered-by');
   app.set('trust proxy', ctx.config.TRUST_PROXY ? 1 : false);
   app.set('query parser', 'simple');
+  // Every API answer is Cache-Control: no-store, so nobody revalidates it: hashing each body for
+  // an ETag was work for nothing. Static files keep theirs (serve-static makes its own).
+  app.set('etag', false);
 
   app.use(
     helmet({

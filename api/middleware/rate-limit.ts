@@ -9,7 +9,7 @@
  */
 import type { RequestHandler } from 'express';
 import { eq } from 'drizzle-orm';
-import { RateLimiterPostgres, RateLimiterRes } from 'rate-limiter-flexible';
+import { RateLimiterMemory, RateLimiterPostgres, RateLimiterRes } from 'rate-limiter-flexible';
 import { users } from '../../db/schema';
 import type { AppContext } from '../context';
 import { fail } from '../http/errors';
@@ -21,6 +21,12 @@ export interface LimitSpec {
   durationSeconds: number;
   /** The budget, in the same window, of a signed-in account created less than a day ago. */
   newAccountPoints?: number;
+  /**
+   * Where the counts live: PostgreSQL (shared by every API process; the default) or this
+   * process's memory — for read routes, where a write per request would cost more than the
+   * read, and a budget per process is enough to stop one client hammering it.
+   */
+  store?: 'postgres' | 'memory';
 }
 
 /** How long an account counts as new. */
@@ -29,7 +35,8 @@ export const NEW_ACCOUNT_MS = 24 * 60 * 60 * 1000;
 /** A quarter of the budget (at least 1): what a first-day account gets unless a route says otherwise. */
 export const newAccountShare = (points: number) => Math.max(1, Math.floor(points / 4));
 
-function limiter(ctx: AppContext, keyPrefix: string, points: number, duration: number) {
+function limiter(ctx: AppContext, keyPrefix: string, points: number, duration: number, store: LimitSpec['store'] = 'postgres') {
+  if (store === 'memory') return new RateLimiterMemory({ keyPrefix, points, duration });
   return new RateLimiterPostgres({
     storeClient: ctx.database.pool,
     storeType: 'pool',
@@ -48,10 +55,10 @@ async function isNewAccount(ctx: AppContext, userId: number): Promise<boolean> {
 }
 
 export function rateLimit(ctx: AppContext, spec: LimitSpec): RequestHandler {
-  const ordinary = limiter(ctx, spec.name, spec.points, spec.durationSeconds);
+  const ordinary = limiter(ctx, spec.name, spec.points, spec.durationSeconds, spec.store);
   const firstDay =
     spec.newAccountPoints !== undefined
-      ? limiter(ctx, `${spec.name}-new`, spec.newAccountPoints, spec.durationSeconds)
+      ? limiter(ctx, `${spec.name}-new`, spec.newAccountPoints, spec.durationSeconds, spec.store)
       : null;
   return async (req, res, next) => {
     const key = req.user ? `u${req.user.id}` : `ip${req.ip ?? 'unknown'}`;

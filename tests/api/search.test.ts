@@ -253,3 +253,20 @@ describe('finding the newest matches: the walk and the RUM scan', () => {
     expect(kept.items.some((i) => i.url.startsWith('/notes/'))).toBe(true);
   });
 });
+
+describe('the search budget', () => {
+  it('answers 429 with Retry-After once a client has spent its searches for the minute', async () => {
+    const limited = await createTestApp({ env: { SEARCH_RATE_PER_MINUTE: '3' } });
+    try {
+      const agent = limited.agent();
+      for (let i = 0; i < 3; i++) await agent.get('/api/search?q=relay').expect(200);
+      const refused = await agent.get('/api/search?q=relay').expect(429);
+      expect(refused.body.error.code).toBe('rate_limited');
+      expect(Number(refused.headers['retry-after'])).toBeGreaterThan(0);
+      // Another budget is untouched: the same client still reads a project.
+      await agent.get('/api/projects/tide-clock').expect(200);
+    } finally {
+      await limited.close();
+    }
+  });
+});
