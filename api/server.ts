@@ -134,7 +134,8 @@ export async function startServer(config: Config, options: StartOptions = {}): P
     stops.push(startSearchIndexer(ctx, secondary));
     const { app } = createApp(ctx, options.clientDir ? { clientDir: options.clientDir } : {});
     const server = await new Promise<Server>((resolve, reject) => {
-      const s = app.listen(config.PORT, config.HOST, () => resolve(s));
+      // Express 5 hands a listen error (a port in use) to this callback, not only to 'error'.
+      const s = app.listen(config.PORT, config.HOST, (error?: Error) => (error ? reject(error) : resolve(s)));
       s.once('error', reject);
     });
     server.keepAliveTimeout = 5_000;

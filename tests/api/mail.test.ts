@@ -435,7 +435,9 @@ describe('the daily digest', () => {
     // Ilse chose the digest for comments.
     await t.ctx.db.insert(notificationSettings).values({ userId: ilse.id, kind: 'comment', mode: 'daily' });
     const ilseComment = await insertNotification(t, ilse.id, 'comment', payload({ targetLabel: 'Hardware' }));
-    const now = new Date();
+    // A second on: the database stamps microseconds, a JavaScript date only milliseconds, so a row
+    // written in the same millisecond would otherwise count as later than "now".
+    const now = new Date(Date.now() + 1_000);
 
     expect(await runDailyDigest(t.ctx, now)).toEqual({ sent: 2, notifications: 4, failed: 0 });
 

@@ -11,7 +11,6 @@ import { startServer } from '../../api/server';
 import { users } from '../../db/schema';
 import { createTestApp, type SignedInAgent, type TestApp } from '../setup/app';
 import { createTestDatabase } from '../setup/db';
-import { freePort } from '../setup/postgres';
 
 let t: TestApp;
 let maker: SignedInAgent;
@@ -58,12 +57,12 @@ describe('seeding the parts library', () => {
 
   it('seeds the parts at server start without demo data, so a production database has them too', async () => {
     const database = await createTestDatabase();
-    const port = await freePort();
+    // No request is made: any free port will do (0), with no race for a port picked beforehand.
     const server = await startServer(
       loadConfig({
         NODE_ENV: 'test',
-        PORT: String(port),
-        APP_ORIGIN: `http://localhost:${port}`,
+        PORT: '0',
+        APP_ORIGIN: 'http://localhost:3000',
         FAKE_GITHUB_PORT: '0',
         FAKE_SMTP_PORT: '0',
         LOG_LEVEL: 'silent',

@@ -28,21 +28,35 @@ export interface Product {
 
 export async function startProduct(env: Record<string, string> = {}): Promise<Product> {
   const database = await createTestDatabase();
-  const port = await freePort();
-  const origin = `http://localhost:${port}`;
   // Uploaded files go to a folder of this run, never the repository's uploads/.
   const uploadsDir = fs.mkdtempSync(path.join(os.tmpdir(), 'rwb-e2e-uploads-'));
-  const config = loadConfig({
-    UPLOADS_DIR: uploadsDir,
-    NODE_ENV: 'test',
-    PORT: String(port),
-    APP_ORIGIN: origin,
-    FAKE_GITHUB_PORT: '0',
-    FAKE_SMTP_PORT: '0',
-    LOG_LEVEL: 'warn',
-    ...env,
-  });
-  const server = await startServer(config, { clientDir: defaultClientDir(repoRoot), databaseUrl: database.url });
+  // The origin must name the port (sign-in callback, Origin check), so it is picked first; another
+  // process may take it before the server listens, and then a second port is tried.
+  const start = async () => {
+    const port = await freePort();
+    const origin = `http://localhost:${port}`;
+    const config = loadConfig({
+      UPLOADS_DIR: uploadsDir,
+      NODE_ENV: 'test',
+      PORT: String(port),
+      APP_ORIGIN: origin,
+      FAKE_GITHUB_PORT: '0',
+      FAKE_SMTP_PORT: '0',
+      LOG_LEVEL: 'warn',
+      ...env,
+    });
+    return { origin, server: await startServer(config, { clientDir: defaultClientDir(repoRoot), databaseUrl: database.url }) };
+  };
+  let started: Awaited<ReturnType<typeof start>>;
+  for (let attempt = 1; ; attempt++) {
+    try {
+      started = await start();
+      break;
+    } catch (error) {
+      if ((error as NodeJS.ErrnoException).code !== 'EADDRINUSE' || attempt === 3) throw error;
+    }
+  }
+  const { origin, server } = started;
   const browser = await chromium.launch({
     executablePath: CHROMIUM,
     headless: true,
