@@ -376,13 +376,19 @@ export class PostgresSearch implements SearchBackend {
   private rum: Promise<boolean> | null = null;
   private items = { estimate: 0, at: 0 };
 
-  /** Whether the RUM index exists (looked up once). */
+  /** Whether the RUM index exists (looked up once it could be; a failed look-up is tried again). */
   private hasRum(): Promise<boolean> {
     this.rum ??= this.db
       .execute<{ found: boolean }>(
         sql`SELECT EXISTS (SELECT 1 FROM pg_indexes WHERE indexname = ${RUM_INDEX}) AS found`,
       )
-      .then((r) => r.rows[0]?.found === true);
+      .then(
+        (r) => r.rows[0]?.found === true,
+        (error: unknown) => {
+          this.rum = null;
+          throw error;
+        },
+      );
     return this.rum;
   }
 
