@@ -9,10 +9,10 @@ import path from 'node:path';
 import pg from 'pg';
 
 export const PG_BIN = process.env.PG_BIN ?? '/usr/lib/postgresql/15/bin';
-const INSTALL_COMMAND = 'apt-get update && apt-get install -y postgresql postgresql-contrib postgresql-15-rum';
 /** Debian's package of the RUM index the search uses when it can (api/search/postgres.ts). */
 const RUM_PACKAGE = 'postgresql-15-rum';
-const RUM_CONTROL = process.env.PG_SHARE ? path.join(process.env.PG_SHARE, 'extension/rum.control') : '/usr/share/postgresql/15/extension/rum.control';
+const RUM_CONTROL = '/usr/share/postgresql/15/extension/rum.control';
+const INSTALL_COMMAND = `apt-get update && apt-get install -y postgresql postgresql-contrib ${RUM_PACKAGE}`;
 
 const isRoot = () => typeof process.getuid === 'function' && process.getuid() === 0;
 

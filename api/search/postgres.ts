@@ -271,6 +271,10 @@ const toFacet = (rows: FacetJson, label: (row: FacetJson[number]) => string): Fa
 
 export class PostgresSearch implements SearchBackend {
   readonly name = 'postgres' as const;
+  /** Whether the RUM index exists, once looked up. */
+  private rum: Promise<boolean> | null = null;
+  /** The table's row estimate and when it was read. */
+  private items = { estimate: 0, at: 0 };
 
   constructor(
     private readonly db: Db,
@@ -373,9 +377,6 @@ export class PostgresSearch implements SearchBackend {
     return { ...first, suggestions: await this.suggest(query.q) };
   }
 
-  private rum: Promise<boolean> | null = null;
-  private items = { estimate: 0, at: 0 };
-
   /** Whether the RUM index exists (looked up once it could be; a failed look-up is tried again). */
   private hasRum(): Promise<boolean> {
     this.rum ??= this.db
@@ -414,7 +415,7 @@ export class PostgresSearch implements SearchBackend {
     return chooseStrategy(estimate, await this.itemEstimate(), this.bounds.candidates);
   }
 
-  /** The statements a search runs, in order (the benchmark times them on the database). */
+  /** Picks the strategy (the planner's estimate), then builds the search statement; the benchmark times both. */
   async statementFor(query: SearchQuery, viewer: SearchViewer, text: string): Promise<SQL> {
     return searchStatement(query, viewer, text, await this.strategyFor(text), this.bounds);
   }
